@@ -1,0 +1,221 @@
+"""The records that flow through the pipeline: tokens, rewrites, findings, verdicts, reports.
+
+Every record is a frozen, slotted dataclass that is complete when created: nothing is
+stamped on afterwards, and every field takes part in equality. Reporters, the CLI and the
+Python API only ever see these records; none of them may reach back into rules.
+"""
+
+from __future__ import annotations
+
+import enum
+from collections.abc import Iterable, Mapping
+from dataclasses import dataclass, field
+from typing import Union
+
+EvidenceValue = Union[str, int, float, bool, None, tuple["EvidenceValue", ...]]
+"""A value a machine can read from a finding: plain scalars and tuples of them."""
+
+
+class TokenKind(enum.StrEnum):
+    """What a token is. Literal kinds are kept whole by the tokenizer."""
+
+    WORD = "word"
+    NUMBER = "number"  # digits, with decimal marks and an optional unit: 12, 3.5mm, 10 kg is two tokens
+    URL = "url"
+    EMAIL = "email"
+    PATH = "path"
+    HANDLE = "handle"  # @name
+    HASHTAG = "hashtag"  # #name
+    IDENTIFIER = "identifier"  # snake_case, camelCase, dotted.name, name()
+    FLAG = "flag"  # -v, --color=auto
+    CODE = "code"  # letters mixed with digits: XR-220, A4, H2O
+    PUNCT = "punct"
+    SYMBOL = "symbol"
+    SPACE = "space"
+
+
+LITERAL_KINDS: frozenset[TokenKind] = frozenset(
+    {
+        TokenKind.NUMBER,
+        TokenKind.URL,
+        TokenKind.EMAIL,
+        TokenKind.PATH,
+        TokenKind.HANDLE,
+        TokenKind.HASHTAG,
+        TokenKind.IDENTIFIER,
+        TokenKind.FLAG,
+        TokenKind.CODE,
+    }
+)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Token:
+    """A span of a text. ``start``/``end`` are character offsets into the text it came from."""
+
+    text: str
+    start: int
+    end: int
+    kind: TokenKind
+
+
+class RewriteKind(enum.StrEnum):
+    """How many tokens a rewrite turns into how many."""
+
+    REPLACE = "replace"  # n tokens to m tokens, not one of the cases below
+    SPLIT = "split"  # 1 token to n, same letters: "notebook" -> "note book"
+    JOIN = "join"  # n tokens to 1, same letters: "note book" -> "notebook"
+    INSERT = "insert"
+    DELETE = "delete"
+
+
+class Refinement(enum.StrEnum):
+    """The finer nature of a change, when it is only one of these."""
+
+    CASE = "case"  # letter case only
+    ACCENTS = "accents"  # diacritics only
+    SPACING = "spacing"  # whitespace only
+    PUNCTUATION = "punctuation"  # punctuation only
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Rewrite:
+    """One aligned change between source and proposal.
+
+    ``start``/``end`` are offsets into the source, ``new_start``/``new_end`` into the
+    proposal. Applying a rewrite replaces ``source[start:end]`` (== ``old``) by ``new``.
+    """
+
+    index: int
+    start: int
+    end: int
+    old: str
+    new: str
+    new_start: int
+    new_end: int
+    kind: RewriteKind
+    refinement: Refinement | None
+    old_tokens: tuple[Token, ...]
+    new_tokens: tuple[Token, ...]
+
+
+class Action(enum.StrEnum):
+    """What a finding asks for."""
+
+    FLAG = "flag"
+    VETO = "veto"
+
+
+class Verdict(enum.StrEnum):
+    """The decision on a rewrite or a pair. Ordered: accept < flag < veto."""
+
+    ACCEPT = "accept"
+    FLAG = "flag"
+    VETO = "veto"
+
+    @property
+    def rank(self) -> int:
+        return _VERDICT_RANK[self]
+
+    @classmethod
+    def of(cls, action: Action) -> Verdict:
+        return cls(action.value)
+
+    @classmethod
+    def worst(cls, verdicts: Iterable[Verdict]) -> Verdict:
+        """The worst of some verdicts; ``ACCEPT`` when there are none."""
+        best = cls.ACCEPT
+        for v in verdicts:
+            if _VERDICT_RANK[v] > _VERDICT_RANK[best]:
+                best = v
+        return best
+
+
+_VERDICT_RANK = {Verdict.ACCEPT: 0, Verdict.FLAG: 1, Verdict.VETO: 2}
+
+
+class Tier(enum.StrEnum):
+    """Where a rule stands in precedence (see guard.decide)."""
+
+    HARD = "hard"  # nothing overrides
+    DOMAIN = "domain"  # an allowed pair overrides
+    EVIDENCE = "evidence"  # an allowed pair overrides
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Origin:
+    """Where a setting, a term or a pattern came from: a ruleset file, its line, its key."""
+
+    file: str
+    line: int | None = None
+    key: str | None = None
+
+    def __str__(self) -> str:
+        where = self.file if self.line is None else f"{self.file}:{self.line}"
+        return where if self.key is None else f"{where} [{self.key}]"
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Finding:
+    """What one rule saw about one rewrite (``rewrite`` = its index) or the pair (``None``).
+
+    ``message`` is ``template`` filled in from ``evidence``; a machine reads the evidence,
+    a person the message. ``origin`` names the ruleset file/line of the term, pattern or
+    setting that triggered it.
+    """
+
+    rule: str
+    tier: Tier
+    action: Action
+    template: str
+    evidence: Mapping[str, EvidenceValue] = field(hash=False)
+    rewrite: int | None
+    origin: Origin | None = None
+
+    @property
+    def message(self) -> str:
+        try:
+            return self.template.format(**self.evidence)
+        except (KeyError, IndexError, ValueError):
+            return self.template
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class RewriteVerdict:
+    """A rewrite, the verdict on it, and every finding that bears on it.
+
+    ``overridden`` holds findings an allowed pair set aside (kept, so that an explanation
+    can say so); ``allowed_by`` names that pair's origin.
+    """
+
+    rewrite: Rewrite
+    verdict: Verdict
+    findings: tuple[Finding, ...]
+    overridden: tuple[Finding, ...] = ()
+    allowed_by: Origin | None = None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Report:
+    """The whole judgement on one pair."""
+
+    source: str
+    proposal: str
+    lang: str
+    verdict: Verdict
+    rewrites: tuple[RewriteVerdict, ...]
+    pair_findings: tuple[Finding, ...]
+    guarded: str  # source with accepted and flagged rewrites applied (vetoed undone)
+    guarded_strict: str  # source with only accepted rewrites applied (flagged undone too)
+    ruleset: str
+
+    def guarded_text(self, *, undo_flagged: bool = False) -> str:
+        return self.guarded_strict if undo_flagged else self.guarded
+
+    @property
+    def findings(self) -> tuple[Finding, ...]:
+        out: list[Finding] = list(self.pair_findings)
+        for rv in self.rewrites:
+            out.extend(rv.findings)
+        return tuple(out)
+
