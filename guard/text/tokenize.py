@@ -1,0 +1,166 @@
+r"""Split text into tokens that tile it exactly and keep whole what must not be cut.
+
+Every character of the text belongs to exactly one token, in order, so joining the
+token texts gives the text back and the offsets of a token are offsets into the text.
+That is what lets alignment map a change back to the source without guessing.
+
+What a token is:
+
+* Literal tokens are kept whole: URLs (``scheme://…``, ``www.…``), e-mail addresses,
+  file paths (``/usr/local/bin``, ``./x``, ``~/x``, ``C:\dir\file``, ``dir/file.ext``),
+  numbers with decimal marks and an attached unit (``12``, ``3.5mm``, ``1,000.5``,
+  ``10%``, ``-4``), ``@handles``, ``#tags``, identifiers (``snake_case``,
+  ``camelCase``, ``PascalCase``, ``dotted.names``, ``name()``), option flags (``-v``,
+  ``--dry-run``, ``--color=auto``) and codes that mix letters and digits (``XR-220``,
+  ``A4``, ``H2O``, ``v2.3.1``).
+* A word is a run of letters, marks, digits and connectors; internal hyphens and
+  apostrophes stay inside (``well-known``, ``don't``, ``O'Neil``).
+* French and Italian elision is split after the apostrophe (``l'`` + ``homme``,
+  ``dell'`` + ``anno``): the article and the noun are two words, and a spelling fix
+  of the noun must not look like a change of the article. Only a closed list of
+  elided forms is split, so English contractions stay whole.
+* In scripts written without spaces between words (Han, Hiragana, Katakana, Thai,
+  Lao, Khmer, Myanmar, Tai Tham) every grapheme cluster is its own word token, so
+  alignment there works grapheme by grapheme.
+* Whitespace runs are SPACE tokens; any other character is a PUNCT or SYMBOL token of
+  one grapheme cluster.
+
+No token ends inside a grapheme cluster: combining marks, emoji ZWJ sequences and
+flags stay with their base.
+
+>>> [t.text for t in tokenize("See ./run.sh --dry-run, e-mail ops@example.org!") if t.text != " "]
+['See', './run.sh', '--dry-run', ',', 'e-mail', 'ops@example.org', '!']
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+import regex
+
+from guard.records import Token, TokenKind
+
+__all__ = ["spans", "tokenize"]
+
+# Characters that must not start a new token: they extend the cluster before them.
+_EXTEND = r"[\p{GCB=Extend}\p{GCB=ZWJ}\p{GCB=SpacingMark}]"
+# A token may end here only at a grapheme cluster boundary.
+_END = rf"(?!{_EXTEND})(?<!\p{{GCB=Prepend}})"
+# Scripts written without spaces between words.
+_NOSPACE = (
+    r"\p{scx=Han}\p{scx=Hiragana}\p{scx=Katakana}\p{scx=Thai}\p{scx=Lao}"
+    r"\p{scx=Khmer}\p{scx=Myanmar}\p{scx=Tai_Tham}"
+)
+_W = rf"[\w--[{_NOSPACE}]]"  # a word character of a script that uses spaces
+_SEG = r"[\w\-+~%$]+(?:\.[\w\-+~%$]+)*"  # a path segment: dots only inside
+_TAIL_STOP = r"""[^\s<>"'`.,;:!?)\]}]"""  # what a URL may end with
+
+_PATTERN = rf"""
+  (?P<url>(?:[A-Za-z][A-Za-z0-9+.\-]*://|www\.)[^\s<>"'`]*{_TAIL_STOP}{_END})
+| (?P<email>(?<![\w.+\-])[\w+\-]+(?:\.[\w+\-]+)*@[\w\-]+(?:\.[\w\-]+)+{_END})
+| (?P<path>
+      (?<![\w/\\])[A-Za-z]:\\(?:{_SEG}\\?)*(?<!\\){_END}
+    | (?<![\w/.~])(?:~|\.{{1,2}})(?:/\.?{_SEG})+/?{_END}
+    | (?<![\w/.~])(?:/\.?{_SEG}){{2,}}/?{_END}
+    | (?<![\w/.~\-])(?=\p{{L}}|_|\.)\.?{_SEG}(?:/\.?{_SEG})*/\.?{_SEG}\.[A-Za-z]\w*{_END}
+  )
+| (?P<handle>(?<![\w@])@\w+(?:[.\-]\w+)*{_END})
+| (?P<hashtag>(?<![\w#&])\#\w*[^\W\d_]\w*{_END})
+| (?P<flag>(?<![\w\-])--?[A-Za-z][\w\-]*(?<!-)(?:=[^\s,;]*[^\s.,;:!?)'"])?{_END})
+| (?P<number>(?<![\w.\-+\u2212])[\-+\u2212]\d+(?:[.,]\d+)*(?:%|‰|\p{{L}}+)?{_END})
+| (?P<elision>(?<![\w'’])
+      (?i:[ldjmnstc]|qu|jusqu|lorsqu|puisqu|quoiqu|presqu|dell|nell|all|dall|sull|coll
+          |quell|un|nessun|buon|bell|sant)
+      ['’](?=\p{{L}}){_END})
+| (?P<cluster>(?=[[\w]&&[{_NOSPACE}]])\X)
+| (?P<chunk>
+      {_W}+
+      (?:(?:(?<=\d)[.,](?=\d)|(?<=\p{{L}}\p{{M}}*)['’·](?=\p{{L}})|[\-‐.](?={_W})){_W}+)*
+      (?:\(\)|(?<=\d)(?:%|‰))?{_END}
+  )
+| (?P<space>(?>\r\n|\s)+{_END})
+| (?P<other>\X)
+"""
+
+_TOKEN = regex.compile(_PATTERN, regex.VERBOSE | regex.VERSION1)
+
+_NUMBER = regex.compile(r"\d+(?:[.,]\d+)*(?:\p{L}+|%|‰)?", regex.VERSION1)
+_HAS_DIGIT = regex.compile(r"\d")
+_HAS_LETTER = regex.compile(r"\p{L}")
+_CAMEL = regex.compile(r"\p{Ll}{2,}\p{Lu}|\p{Lu}\p{Ll}{2,}\p{Lu}\p{Ll}|\p{Lu}{2,}\p{Ll}{2,}")
+_PUNCT = regex.compile(r"\p{P}")
+
+_GROUP_KIND = {
+    "url": TokenKind.URL,
+    "email": TokenKind.EMAIL,
+    "path": TokenKind.PATH,
+    "handle": TokenKind.HANDLE,
+    "hashtag": TokenKind.HASHTAG,
+    "flag": TokenKind.FLAG,
+    "number": TokenKind.NUMBER,
+    "elision": TokenKind.WORD,
+    "cluster": TokenKind.WORD,
+    "space": TokenKind.SPACE,
+}
+
+
+def _chunk_kind(chunk: str) -> TokenKind:
+    """Classify a run of word characters and internal joiners."""
+    if chunk.endswith("()"):
+        return TokenKind.IDENTIFIER
+    has_letter = _HAS_LETTER.search(chunk) is not None
+    if _HAS_DIGIT.search(chunk) is not None:
+        if _NUMBER.fullmatch(chunk) is not None or not has_letter:
+            return TokenKind.NUMBER
+        return TokenKind.IDENTIFIER if "_" in chunk.strip("_") else TokenKind.CODE
+    if not has_letter:
+        return TokenKind.PUNCT if chunk.strip("_") == "" else TokenKind.SYMBOL
+    if "_" in chunk:
+        return TokenKind.IDENTIFIER
+    if "." in chunk:
+        # os.path.join, config.yaml are names; e.g, U.S are abbreviations
+        parts = chunk.split(".")
+        return TokenKind.IDENTIFIER if min(map(len, parts)) >= 2 else TokenKind.WORD
+    if chunk.isascii() and _CAMEL.search(chunk) is not None:
+        return TokenKind.IDENTIFIER
+    return TokenKind.WORD
+
+
+def _kind(group: str, text: str) -> TokenKind:
+    if group == "chunk":
+        return _chunk_kind(text)
+    if group == "other":
+        return TokenKind.PUNCT if _PUNCT.match(text) else TokenKind.SYMBOL
+    return _GROUP_KIND[group]
+
+
+def spans(text: str) -> Iterator[tuple[int, int, TokenKind]]:
+    """``(start, end, kind)`` of each token, without building :class:`Token` records.
+
+    Alignment uses this to avoid making records for the unchanged part of a text.
+
+    >>> list(spans("H2O at 3.5mm"))  # doctest: +NORMALIZE_WHITESPACE
+    [(0, 3, <TokenKind.CODE: 'code'>), (3, 4, <TokenKind.SPACE: 'space'>),
+     (4, 6, <TokenKind.WORD: 'word'>), (6, 7, <TokenKind.SPACE: 'space'>),
+     (7, 12, <TokenKind.NUMBER: 'number'>)]
+    """
+    for m in _TOKEN.finditer(text):
+        group = m.lastgroup
+        assert group is not None  # every alternative is a named group
+        yield m.start(), m.end(), _kind(group, m.group())
+
+
+def tokenize(text: str) -> tuple[Token, ...]:
+    """The tokens of ``text``, tiling it exactly.
+
+    >>> [(t.text, t.kind.value) for t in tokenize("l'homme don't")]
+    [("l'", 'word'), ('homme', 'word'), (' ', 'space'), ("don't", 'word')]
+    >>> [t.text for t in tokenize("東京タワー")]
+    ['東', '京', 'タ', 'ワ', 'ー']
+    >>> "".join(t.text for t in tokenize("e\u0301 👩\u200d💻!")) == "e\u0301 👩\u200d💻!"
+    True
+    """
+    return tuple(
+        Token(text=text[start:end], start=start, end=end, kind=kind)
+        for start, end, kind in spans(text)
+    )
