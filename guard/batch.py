@@ -1,0 +1,321 @@
+"""Check a stream of records, in input order, in this process or spread over several.
+
+Every record in gives exactly one ``Outcome`` out, in the same order: a report, or the
+reason it has none (it could not be read, it is over a limit, or the engine failed on it).
+The batch never stops for one record. With ``jobs > 1`` records go to a pool of worker
+processes, each of which loads the ruleset once; results come back in order, so the
+output is the same byte for byte as with one job. A worker that dies (a crash in native
+code, say) breaks the pool: the records it may have held are checked again one by one in a
+fresh pool, and the one that breaks it again is reported as an error outcome. Nothing waits
+forever on a dead worker.
+
+This module never prints; it only turns records into outcomes and counts them.
+"""
+
+from __future__ import annotations
+
+import multiprocessing
+import signal
+from collections import Counter, deque
+from collections.abc import Callable, Iterable, Iterator, Sequence
+from concurrent.futures import Future, ProcessPoolExecutor
+from concurrent.futures.process import BrokenProcessPool
+from dataclasses import dataclass, field
+
+from guard.errors import RecordError
+from guard.io.read import ErrorRecord, InputRecord, Limits
+from guard.records import Report, Verdict
+
+CRASHED = "the worker process checking this record died"
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Outcome:
+    """One record and what came of it: a ``report``, or an ``error`` saying why not."""
+
+    record: InputRecord | ErrorRecord
+    report: Report | None = None
+    error: str | None = None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Job:
+    """What a worker needs to check one pair (records stay in the main process)."""
+
+    source: str
+    proposal: str
+    lang: str | None
+    score: float | None
+
+
+Checker = Callable[[Job], Report]
+"""Checks one pair; may raise, and the batch turns that into an error outcome."""
+
+CheckerFactory = Callable[[tuple[str, ...]], Checker]
+"""Builds a checker from ruleset references, once per process. Must be picklable."""
+
+
+def guard_checker(ruleset_refs: tuple[str, ...]) -> Checker:
+    """The engine's checker for these rulesets (raises RulesetError when they are bad)."""
+    from guard.api import Guard, load_ruleset
+
+    engine = Guard(load_ruleset(*ruleset_refs))
+
+    def check(job: Job) -> Report:
+        return engine.check(job.source, job.proposal, lang=job.lang, score=job.score)
+
+    return check
+
+
+def count_tokens(text: str, limit: int) -> int:
+    """Tokens of ``text`` that are not spaces, counting no further than ``limit + 1``.
+
+    >>> count_tokens("bilge pump XR-220", 100)
+    3
+    """
+    from guard.records import TokenKind
+    from guard.text.tokenize import spans
+
+    n = 0
+    for _, _, kind in spans(text):
+        if kind is not TokenKind.SPACE:
+            n += 1
+            if n > limit:
+                break
+    return n
+
+
+def check_records(
+    records: Iterable[InputRecord | ErrorRecord],
+    ruleset_refs: Sequence[str],
+    *,
+    jobs: int = 1,
+    lang_default: str | None = None,
+    limits: Limits | None = None,
+    checker: Checker | None = None,
+    checker_factory: CheckerFactory = guard_checker,
+    chunk_size: int = 16,
+    mp_context: str | None = None,
+) -> Iterator[Outcome]:
+    """One outcome per record, in order.
+
+    ``checker`` is the in-process checker to use with one job (built from
+    ``checker_factory`` when not given); with ``jobs > 1`` every worker builds its own
+    with ``checker_factory(ruleset_refs)``. ``lang_default`` is the language of records
+    that name none (None: the ruleset's first language).
+    """
+    lim = limits or Limits()
+    refs = tuple(ruleset_refs)
+    prepared = (_prepare(r, lang_default, lim) for r in records)
+    if jobs <= 1:
+        check = checker if checker is not None else checker_factory(refs)
+        for record, job, error in prepared:
+            if job is None:
+                yield Outcome(record=record, error=error)
+            else:
+                yield _outcome(record, _run(check, job))
+        return
+    yield from _Pool(refs, jobs, checker_factory, chunk_size, mp_context).run(prepared)
+
+
+_Prepared = tuple[InputRecord | ErrorRecord, Job | None, str | None]
+
+
+def _prepare(record: InputRecord | ErrorRecord, lang_default: str | None, lim: Limits) -> _Prepared:
+    if isinstance(record, ErrorRecord):
+        return record, None, record.reason
+    for name, text in (("source", record.source), ("proposal", record.proposal)):
+        n = count_tokens(text, lim.max_tokens)
+        if n > lim.max_tokens:
+            return record, None, f"the {name} has more than {lim.max_tokens} tokens"
+    job = Job(
+        source=record.source,
+        proposal=record.proposal,
+        lang=record.lang or lang_default,
+        score=record.score,
+    )
+    return record, job, None
+
+
+def _run(check: Checker, job: Job) -> Report | str:
+    """The report, or the reason the engine gave none. The batch must go on either way."""
+    try:
+        return check(job)
+    except RecordError as e:
+        return e.reason
+    except RecursionError:
+        return "the engine ran out of stack on this record"
+    except Exception as e:  # any engine fault is this record's error, not the batch's
+        return f"the engine failed: {type(e).__name__}: {e}"
+
+
+def _outcome(record: InputRecord | ErrorRecord, result: Report | str) -> Outcome:
+    if isinstance(result, str):
+        return Outcome(record=record, error=result)
+    return Outcome(record=record, report=result)
+
+
+# The checker of a worker process, set once by the pool's initializer: a process pool
+# gives no other place to keep per-process state between tasks.
+_WORKER_CHECK: Checker | None = None
+
+
+def _init_worker(factory: CheckerFactory, refs: tuple[str, ...]) -> None:
+    global _WORKER_CHECK
+    # Ctrl-C goes to the whole process group; only the main process decides what to do.
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    _WORKER_CHECK = factory(refs)
+
+
+def _work(jobs: list[Job | None]) -> list[Report | str | None]:
+    check = _WORKER_CHECK
+    if check is None:
+        return ["the worker process has no ruleset loaded" if j else None for j in jobs]
+    return [None if j is None else _run(check, j) for j in jobs]
+
+
+@dataclass(slots=True)
+class _Pool:
+    refs: tuple[str, ...]
+    jobs: int
+    factory: CheckerFactory
+    chunk_size: int
+    mp_context: str | None
+    generation: int = 0
+    executor: ProcessPoolExecutor | None = None
+
+    def _renew(self) -> None:
+        if self.executor is not None:
+            self.executor.shutdown(wait=False, cancel_futures=True)
+        method = self.mp_context or (
+            "forkserver" if "forkserver" in multiprocessing.get_all_start_methods() else "spawn"
+        )
+        self.executor = ProcessPoolExecutor(
+            max_workers=self.jobs,
+            mp_context=multiprocessing.get_context(method),
+            initializer=_init_worker,
+            initargs=(self.factory, self.refs),
+        )
+        self.generation += 1
+
+    def run(self, prepared: Iterator[_Prepared]) -> Iterator[Outcome]:
+        window: deque[tuple[list[_Prepared], Future[list[Report | str | None]], int]] = deque()
+        self._renew()
+        try:
+            exhausted = False
+            while True:
+                while not exhausted and len(window) < self.jobs * 4:
+                    chunk = _take(prepared, self.chunk_size)
+                    if not chunk:
+                        exhausted = True
+                        break
+                    window.append((chunk, self._submit([j for _, j, _ in chunk]), self.generation))
+                if not window:
+                    return
+                chunk, future, generation = window.popleft()
+                try:
+                    results = future.result()
+                except BrokenProcessPool:
+                    if generation == self.generation:
+                        self._renew()
+                    results = self._one_by_one(chunk)
+                for (record, job, error), result in zip(chunk, results, strict=True):
+                    if job is None or result is None:
+                        yield Outcome(record=record, error=error)
+                    else:
+                        yield _outcome(record, result)
+        finally:
+            if self.executor is not None:
+                self.executor.shutdown(wait=False, cancel_futures=True)
+
+    def _submit(self, jobs: list[Job | None]) -> Future[list[Report | str | None]]:
+        assert self.executor is not None
+        try:
+            return self.executor.submit(_work, jobs)
+        except BrokenProcessPool:
+            self._renew()
+            assert self.executor is not None
+            return self.executor.submit(_work, jobs)
+
+    def _one_by_one(self, chunk: list[_Prepared]) -> list[Report | str | None]:
+        """Check a chunk record by record, so that a record that kills a worker is named."""
+        out: list[Report | str | None] = []
+        for _, job, _ in chunk:
+            if job is None:
+                out.append(None)
+                continue
+            try:
+                out.append(self._submit([job]).result()[0])
+            except BrokenProcessPool:
+                out.append(CRASHED)
+                self._renew()
+        return out
+
+
+def _take(it: Iterator[_Prepared], n: int) -> list[_Prepared]:
+    out: list[_Prepared] = []
+    for item in it:
+        out.append(item)
+        if len(out) >= n:
+            break
+    return out
+
+
+@dataclass(slots=True)
+class Summary:
+    """The tally of a run: it must reconcile, ``read == written == checked + errors``.
+
+    ``rules`` counts findings by (rule, action), ``terms`` the evidence ``term`` of
+    findings (the protected terms most often in the way), ``languages`` pair verdicts by
+    language. Findings an allowed pair set aside are not counted.
+    """
+
+    read: int = 0
+    written: int = 0
+    checked: int = 0
+    errors: int = 0
+    verdicts: Counter[str] = field(default_factory=Counter)
+    rewrite_verdicts: Counter[str] = field(default_factory=Counter)
+    rules: Counter[tuple[str, str]] = field(default_factory=Counter)
+    terms: Counter[str] = field(default_factory=Counter)
+    languages: Counter[tuple[str, str]] = field(default_factory=Counter)
+
+    def add(self, outcome: Outcome) -> None:
+        self.read += 1
+        report = outcome.report
+        if report is None:
+            self.errors += 1
+            return
+        self.checked += 1
+        self.verdicts[report.verdict.value] += 1
+        self.languages[(report.lang, report.verdict.value)] += 1
+        for rv in report.rewrites:
+            self.rewrite_verdicts[rv.verdict.value] += 1
+        for f in report.findings:
+            self.rules[(f.rule, f.action.value)] += 1
+            term = f.evidence.get("term")
+            if isinstance(term, str) and term:
+                self.terms[term] += 1
+
+    @property
+    def reconciles(self) -> bool:
+        return self.read == self.written == self.checked + self.errors
+
+    def worst(self) -> Verdict | None:
+        """The worst pair verdict seen, or None when nothing was checked."""
+        seen = [Verdict(v) for v, n in self.verdicts.items() if n]
+        return Verdict.worst(seen) if seen else None
+
+    def line(self) -> str:
+        """One line for a person or a log.
+
+        >>> s = Summary(read=3, written=3, checked=2, errors=1)
+        >>> s.verdicts.update({"accept": 1, "veto": 1})
+        >>> s.line()
+        'read 3, written 3, checked 2, errors 1; pairs: accept 1, flag 0, veto 1'
+        """
+        tally = ", ".join(f"{v.value} {self.verdicts[v.value]}" for v in Verdict)
+        return (
+            f"read {self.read}, written {self.written}, checked {self.checked}, "
+            f"errors {self.errors}; pairs: {tally}"
+        )
