@@ -41,7 +41,7 @@ from dataclasses import dataclass
 
 import regex
 
-__all__ = ["matches_empty", "probe", "static_risks"]
+__all__ = ["Risk", "matches_empty", "probe", "risks", "static_risks"]
 
 PROBE_LENGTHS: tuple[int, ...] = (30, 300, 1000)
 r"""Repetition counts for probe inputs. Exponential blow-ups show at 30; cubic ones
@@ -53,6 +53,29 @@ such everyday patterns; at 1000 a 0.05 s limit leaves them a margin of about thr
 
 _ANY = "(?s:.)"
 _EXTRA_SAMPLES = "éßİıЖж中あ٣½\u00a0\u2003\t\n\x00_-./:@#"
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Risk:
+    """One risky shape found in a pattern.
+
+    ``shape`` is ``nested-quantifier`` or ``overlapping-alternatives`` (each round of a
+    loop can be split several ways: exponential in backtracking engines),
+    ``adjacent-quantifiers`` (polynomial: n² or n³ on a failing input) or
+    ``not-analysed`` (the parser could not read the pattern; probing still applies).
+    ``severity`` is "error" for the exponential shapes and "warning" for the others, so a
+    loader can refuse the first and only report the second.
+    """
+
+    shape: str
+    message: str
+
+    @property
+    def severity(self) -> str:
+        return "error" if self.shape in _EXPONENTIAL else "warning"
+
+
+_EXPONENTIAL = frozenset({"nested-quantifier", "overlapping-alternatives"})
 
 
 class _Unsupported(Exception):
@@ -457,8 +480,8 @@ def _alternatives_overlap(ctx: _Context, x: _Node, y: _Node) -> bool:
     return all(ctx.overlap(a, b) for a, b in zip(px, py, strict=False))
 
 
-def _walk(ctx: _Context, n: _Node, follow: First, loop: _Repeat | None) -> Iterator[str]:
-    """Yield a message for each risky shape in ``n``.
+def _walk(ctx: _Context, n: _Node, follow: First, loop: _Repeat | None) -> Iterator[Risk]:
+    """Yield each risky shape in ``n``.
 
     ``follow`` is what can come right after ``n``; ``loop`` the nearest enclosing
     quantifier that repeats, if any.
@@ -473,10 +496,13 @@ def _walk(ctx: _Context, n: _Node, follow: First, loop: _Repeat | None) -> Itera
             if loop is not None:
                 for x, y in itertools.combinations(options, 2):
                     if _alternatives_overlap(ctx, x, y):
-                        yield (
-                            f"overlapping alternatives under a quantifier: in {loop.text!r}"
-                            " two alternatives can match the same text, so each round"
-                            " can be split two ways"
+                        yield Risk(
+                            shape="overlapping-alternatives",
+                            message=(
+                                f"overlapping alternatives under a quantifier: in"
+                                f" {loop.text!r} two alternatives can match the same text,"
+                                " so each round can be split two ways"
+                            ),
                         )
                         break
             for x in options:
@@ -484,14 +510,20 @@ def _walk(ctx: _Context, n: _Node, follow: First, loop: _Repeat | None) -> Itera
         case _Repeat(body, _, _, possessive, text) as r:
             if r.variable and not possessive and ctx.overlap(_first(body), follow):
                 if loop is not None:
-                    yield (
-                        f"nested quantifier: {text!r} inside {loop.text!r} can give the"
-                        " same characters to the next round of the outer repeat"
+                    yield Risk(
+                        shape="nested-quantifier",
+                        message=(
+                            f"nested quantifier: {text!r} inside {loop.text!r} can give the"
+                            " same characters to the next round of the outer repeat"
+                        ),
                     )
                 elif ctx.overlap(_first(body), frozenset(f for f in follow if f[1])):
-                    yield (
-                        f"adjacent quantifiers: {text!r} and the quantified item after it"
-                        " can match the same characters"
+                    yield Risk(
+                        shape="adjacent-quantifiers",
+                        message=(
+                            f"adjacent quantifiers: {text!r} and the quantified item after"
+                            " it can match the same characters"
+                        ),
                     )
             inner_follow = _first(body) | follow if r.repeats else follow
             yield from _walk(ctx, body, inner_follow, r if r.repeats else loop)
@@ -509,28 +541,42 @@ def _parse(pattern: str) -> tuple[_Node, _Context]:
     return tree, _Context(_samples(pattern), parser.flags)
 
 
+def risks(pattern: str) -> list[Risk]:
+    r"""The risky shapes of ``pattern``, each once, in the order they occur.
+
+    >>> [(r.shape, r.severity) for r in risks(r"(\w+\s?)+!\d+\d+")]
+    [('nested-quantifier', 'error'), ('adjacent-quantifiers', 'warning')]
+    """
+    try:
+        regex.compile(pattern)
+    except regex.error as e:
+        return [
+            Risk(
+                shape="not-analysed",
+                message=f"not analysed: the pattern does not compile ({e})",
+            )
+        ]
+    try:
+        tree, ctx = _parse(pattern)
+        return list(dict.fromkeys(_walk(ctx, tree, frozenset(), None)))
+    except _Unsupported as e:
+        return [Risk(shape="not-analysed", message=f"not analysed: {e}; rely on probing")]
+
+
 def static_risks(pattern: str) -> list[str]:
-    r"""Messages naming the shapes of ``pattern`` that can backtrack catastrophically.
+    r"""Messages naming the shapes of ``pattern`` that can backtrack badly.
 
     An empty list means none of the known shapes was found, not that the pattern is safe.
     A pattern that does not compile, or that this parser cannot read, gets one message
-    saying so (probe it instead).
+    starting "not analysed:" (probe it instead). :func:`risks` gives the same findings
+    with their shape and severity.
 
     >>> static_risks(r"\b[A-Z]{2}-\d{4}\b")
     []
     >>> static_risks(r"^(a+)+$")  # doctest: +ELLIPSIS
     ["nested quantifier: 'a+' inside '(a+)+' can give the same characters ..."]
     """
-    try:
-        regex.compile(pattern)
-    except regex.error as e:
-        return [f"not analysed: the pattern does not compile ({e})"]
-    try:
-        tree, ctx = _parse(pattern)
-        found = list(dict.fromkeys(_walk(ctx, tree, frozenset(), None)))
-    except _Unsupported as e:
-        return [f"not analysed: {e}; rely on probing"]
-    return found
+    return [risk.message for risk in risks(pattern)]
 
 
 def _probe_pieces(pattern: str) -> tuple[list[str], list[str]]:

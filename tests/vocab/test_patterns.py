@@ -15,7 +15,7 @@ from __future__ import annotations
 import pytest
 import regex
 
-from guard.vocab.patterns import matches_empty, probe, static_risks
+from guard.vocab.patterns import matches_empty, probe, risks, static_risks
 
 OWASP_EMAIL = (
     r"^([a-zA-Z0-9])(([\-.]|[_]+)?([a-zA-Z0-9]+))*(@){1}[a-z0-9]+[.]{1}"
@@ -137,3 +137,18 @@ def test_matches_empty(pattern: str, expected: bool) -> None:
     # Cross-check with the engine itself where the empty text shows it.
     if expected and not pattern.startswith("(?="):
         assert regex.compile(pattern).fullmatch("") is not None or pattern == r"\b"
+
+
+@pytest.mark.parametrize(
+    ("pattern", "shape", "severity"),
+    [
+        pytest.param(r"^(a+)+$", "nested-quantifier", "error", id="nested"),
+        pytest.param(r"(a|aa)+", "overlapping-alternatives", "error", id="alternatives"),
+        pytest.param(r"\d+\.?\d*", "adjacent-quantifiers", "warning", id="adjacent"),
+        pytest.param(r"(?R)x", "not-analysed", "warning", id="unread"),
+    ],
+)
+def test_risk_severity(pattern: str, shape: str, severity: str) -> None:
+    # Exponential shapes are errors, polynomial ones and unread patterns warnings.
+    [risk] = risks(pattern)
+    assert (risk.shape, risk.severity) == (shape, severity)
