@@ -1,0 +1,323 @@
+"""What a change to a ruleset does to a batch: the verdicts that move between two versions.
+
+Both versions check the same pairs; every rewrite whose verdict differs is listed with the
+rules that decided it before and after, and the moves are counted (veto -> accept and so
+on). A rewrite that goes from veto to accept is the change a reviewer must see before it
+ships, so it is counted apart and makes the CLI fail.
+
+A version is a path, a bundled ruleset's name, or ``REV:PATH``: the ruleset at PATH as it
+was at git revision REV. Such a version is exported into a temporary folder, with its term
+lists and the rulesets it extends by relative path; git runs without a shell, in the
+repository that holds PATH. Bundled names inside ``extends`` resolve to the installed
+rulesets, not to their state at REV. Nothing here prints or exits.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import subprocess
+import tarfile
+import tomllib
+from collections import Counter
+from collections.abc import Callable, Iterable, Mapping
+from dataclasses import dataclass
+from pathlib import Path, PurePosixPath
+
+from guard.errors import GuardError
+from guard.io.read import ErrorRecord, InputRecord, Record
+from guard.records import Report, RewriteVerdict, Verdict
+from guard.ruleset.bundled import is_bundled_name
+from guard.vocab.selftest import deciding_findings
+
+
+class RevisionError(GuardError):
+    """A ``REV:PATH`` version could not be read from git."""
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class GitRef:
+    """A ruleset file as it was at a git revision."""
+
+    rev: str
+    path: str
+
+
+def parse_ref(ref: str) -> str | GitRef:
+    """A path or name as it is, or a ``REV:PATH`` split in two.
+
+    A string that names an existing file is always a path, even with a colon in it.
+
+    >>> parse_ref("HEAD~1:rulesets/parts/ruleset.toml")
+    GitRef(rev='HEAD~1', path='rulesets/parts/ruleset.toml')
+    >>> parse_ref("base")
+    'base'
+    """
+    if os.path.exists(ref) or ":" not in ref:
+        return ref
+    rev, _, path = ref.partition(":")
+    if not rev or not path:
+        return ref
+    return GitRef(rev=rev, path=path)
+
+
+def _git(repo: Path, *args: str) -> bytes:
+    try:
+        done = subprocess.run(
+            ["git", *args], cwd=repo, capture_output=True, check=False, shell=False
+        )
+    except OSError as e:
+        raise RevisionError(f"cannot run git: {e}") from e
+    if done.returncode != 0:
+        err = done.stderr.decode("utf-8", "replace").strip()
+        raise RevisionError(f"git {' '.join(args)} (in {repo}): {err}")
+    return done.stdout
+
+
+def _repo_of(path: Path) -> tuple[Path, PurePosixPath]:
+    """The repository holding ``path`` (which may no longer exist) and the path inside it."""
+    absolute = Path(os.path.abspath(path))
+    existing = absolute.parent
+    while not existing.exists() and existing != existing.parent:
+        existing = existing.parent
+    try:
+        top = _git(existing, "rev-parse", "--show-toplevel").decode("utf-8").strip()
+    except RevisionError as e:
+        raise RevisionError(f"{path}: not inside a git repository ({e})") from e
+    root = Path(top)
+    real = Path(os.path.realpath(existing)) / absolute.relative_to(existing)
+    try:
+        inside = real.relative_to(Path(os.path.realpath(root)))
+    except ValueError as e:
+        raise RevisionError(f"{path}: outside the repository {root}") from e
+    return root, PurePosixPath(inside.as_posix())
+
+
+def _normal(path: PurePosixPath) -> PurePosixPath | None:
+    """``a/b/../c`` -> ``a/c``; None when the path climbs out of the repository."""
+    parts: list[str] = []
+    for part in path.parts:
+        if part == "..":
+            if not parts:
+                return None
+            parts.pop()
+        elif part != ".":
+            parts.append(part)
+    return PurePosixPath(*parts)
+
+
+class _Exporter:
+    """Copies folders of one revision into a temporary folder, keeping repository layout."""
+
+    def __init__(self, root: Path, rev: str, dest: Path) -> None:
+        self.root = root
+        self.rev = rev
+        self.dest = dest
+        self.folders: list[PurePosixPath] = []
+        self.seen: set[PurePosixPath] = set()
+
+    def _covered(self, folder: PurePosixPath) -> bool:
+        return any(folder == f or f in folder.parents or f == PurePosixPath() for f in self.folders)
+
+    def folder(self, folder: PurePosixPath) -> None:
+        if self._covered(folder):
+            return
+        spec = "." if folder == PurePosixPath() else folder.as_posix()
+        data = _git(self.root, "archive", "--format=tar", self.rev, "--", spec)
+        with tarfile.open(fileobj=io.BytesIO(data)) as tar:
+            tar.extractall(self.dest, filter="data")
+        self.folders.append(folder)
+
+    def kind(self, path: PurePosixPath) -> str | None:
+        try:
+            return (
+                _git(self.root, "cat-file", "-t", f"{self.rev}:{path.as_posix()}").decode().strip()
+            )
+        except RevisionError:
+            return None
+
+    def ruleset(self, path: PurePosixPath) -> None:
+        """Export the folder of the ruleset at ``path`` and, in turn, what it extends by path."""
+        if path in self.seen:
+            return
+        self.seen.add(path)
+        self.folder(path.parent)
+        try:
+            data = tomllib.loads((self.dest / path).read_text(encoding="utf-8"))
+        except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+            return  # the loader reports it, with file and line
+        head = data.get("ruleset")
+        extends = head.get("extends") if isinstance(head, dict) else None
+        for entry in extends if isinstance(extends, list) else ():
+            if not isinstance(entry, str) or is_bundled_name(entry):
+                continue
+            target = _normal(path.parent / PurePosixPath(entry.replace("\\", "/")))
+            if target is None:
+                continue
+            kind = self.kind(target)
+            if kind == "tree":
+                self.ruleset(target / "ruleset.toml")
+            elif kind == "blob":
+                self.ruleset(target)
+
+
+def materialize(ref: str, workdir: Path) -> str:
+    """Something the loader accepts for ``ref``: the ref itself, or an exported copy's path.
+
+    ``workdir`` must be an empty folder that outlives the loading (a temporary directory).
+    """
+    parsed = parse_ref(ref)
+    if isinstance(parsed, str):
+        return parsed
+    root, inside = _repo_of(Path(parsed.path))
+    try:
+        _git(root, "rev-parse", "--verify", "--quiet", f"{parsed.rev}^{{commit}}")
+    except RevisionError as e:
+        raise RevisionError(f"{ref}: no revision {parsed.rev!r} in {root}") from e
+    exporter = _Exporter(root, parsed.rev, workdir)
+    kind = exporter.kind(inside)
+    if kind == "tree":
+        inside = inside / "ruleset.toml"
+        kind = exporter.kind(inside)
+    if kind != "blob":
+        raise RevisionError(f"{ref}: no file {inside.as_posix()} at revision {parsed.rev}")
+    exporter.ruleset(inside)
+    return str(workdir / inside)
+
+
+# --- the batch -------------------------------------------------------------------------
+
+
+PairChecker = Callable[[InputRecord], Report]
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Change:
+    """A rewrite whose verdict differs between the versions (``None``: absent in one)."""
+
+    record: InputRecord
+    old: str
+    new: str
+    before: Verdict | None
+    after: Verdict | None
+    rules_before: tuple[str, ...]
+    rules_after: tuple[str, ...]
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class DiffResult:
+    pairs: int
+    rewrites: int
+    transitions: Mapping[tuple[str, str], int]  # (before, after) -> rewrites; "-" = absent
+    changes: tuple[Change, ...]
+    errors: tuple[ErrorRecord, ...]
+
+    @property
+    def loosened(self) -> int:
+        """Rewrites that went from veto to accept: the count CI fails on."""
+        return self.transitions.get((Verdict.VETO.value, Verdict.ACCEPT.value), 0)
+
+    @property
+    def pairs_changed(self) -> int:
+        return len({(c.record.file, c.record.line) for c in self.changes})
+
+
+def _key(rv: RewriteVerdict) -> tuple[int, int, str]:
+    return (rv.rewrite.start, rv.rewrite.end, rv.rewrite.new)
+
+
+def _rules(rv: RewriteVerdict | None) -> tuple[str, ...]:
+    if rv is None:
+        return ()
+    return tuple(dict.fromkeys(f.rule for f in deciding_findings(rv)))
+
+
+def diff_batch(records: Iterable[Record], old: PairChecker, new: PairChecker) -> DiffResult:
+    """Check every pair under both versions and collect the rewrites whose verdict moved.
+
+    Rewrites are matched by their source span and new text, so that a version that aligns
+    differently still compares like with like; an unmatched rewrite moves from or to "-".
+    """
+    transitions: Counter[tuple[str, str]] = Counter()
+    changes: list[Change] = []
+    errors: list[ErrorRecord] = []
+    count = rewrites = 0
+    for item in records:
+        if isinstance(item, ErrorRecord):
+            errors.append(item)
+            continue
+        count += 1
+        try:
+            before, after = old(item), new(item)
+        except GuardError as e:
+            errors.append(ErrorRecord(file=item.file, line=item.line, reason=f"check failed: {e}"))
+            continue
+        old_by = {_key(rv): rv for rv in before.rewrites}
+        new_by = {_key(rv): rv for rv in after.rewrites}
+        for key in dict.fromkeys([*old_by, *new_by]):
+            a, b = old_by.get(key), new_by.get(key)
+            rewrites += 1
+            va = a.verdict if a is not None else None
+            vb = b.verdict if b is not None else None
+            transitions[(va.value if va else "-", vb.value if vb else "-")] += 1
+            if va != vb:
+                rw = (a or b).rewrite  # type: ignore[union-attr]
+                changes.append(
+                    Change(
+                        record=item,
+                        old=rw.old,
+                        new=rw.new,
+                        before=va,
+                        after=vb,
+                        rules_before=_rules(a),
+                        rules_after=_rules(b),
+                    )
+                )
+    return DiffResult(
+        pairs=count,
+        rewrites=rewrites,
+        transitions=dict(transitions),
+        changes=tuple(changes),
+        errors=tuple(errors),
+    )
+
+
+def _label(record: InputRecord) -> str:
+    return record.where if record.id is None else f"{record.where} (id {record.id})"
+
+
+def _v(verdict: Verdict | None) -> str:
+    return "-" if verdict is None else verdict.value
+
+
+def format_diff(result: DiffResult, *, old_name: str, new_name: str) -> list[str]:
+    """The summary of verdict moves, then each changed rewrite, then unreadable records."""
+    lines = [
+        f"{old_name} -> {new_name}: {result.pairs} pairs, {result.rewrites} rewrites, "
+        f"{len(result.changes)} changed in {result.pairs_changed} pairs",
+    ]
+    moved = sorted(
+        ((k, n) for k, n in result.transitions.items() if k[0] != k[1]),
+        key=lambda kn: (-kn[1], kn[0]),
+    )
+    unchanged = sum(n for k, n in result.transitions.items() if k[0] == k[1])
+    for (a, b), n in moved:
+        lines.append(f"  {a} -> {b}: {n}")
+    lines.append(f"  unchanged: {unchanged}")
+    if result.changes:
+        lines.append("changed rewrites:")
+    for c in result.changes:
+        why_a = ", ".join(c.rules_before) or "no objection"
+        why_b = ", ".join(c.rules_after) or "no objection"
+        if c.before is None or c.after is None:
+            why_a = why_b = "aligned differently"
+        lines.append(
+            f"  {_label(c.record)}: {c.old!r} -> {c.new!r}: {_v(c.before)} -> {_v(c.after)}"
+            f"  (before: {why_a}; after: {why_b})"
+        )
+    for e in result.errors:
+        lines.append(f"{e.where}: error: {e.reason}")
+    if result.loosened:
+        noun = "rewrite" if result.loosened == 1 else "rewrites"
+        lines.append(f"{result.loosened} {noun} went from veto to accept")
+    return lines

@@ -1,0 +1,127 @@
+"""Lint rulesets: every problem of every ruleset named, in one run, ordered by file and line.
+
+The loader (guard.ruleset.load_problems) finds what is wrong with one ruleset; this module
+gathers the problems of many rulesets, drops the ones two rulesets share (a term list both
+read), orders them by file and line so that a reviewer reads a file top to bottom, counts
+them and renders them as lines. It never prints and never exits: the CLI does that.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+from guard.errors import Problem
+from guard.ruleset import load_problems
+
+ERROR = "error"
+WARNING = "warning"
+
+# Folders never searched for rulesets when none is named: tool caches and environments.
+_SKIP_DIRS = frozenset({".git", ".hg", ".svn", ".venv", "venv", "node_modules", "__pycache__"})
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class LintResult:
+    """The problems of some rulesets, deduplicated and ordered by file, line, key."""
+
+    rulesets: tuple[str, ...]
+    problems: tuple[Problem, ...]
+
+    @property
+    def errors(self) -> int:
+        return sum(1 for p in self.problems if p.severity == ERROR)
+
+    @property
+    def warnings(self) -> int:
+        return sum(1 for p in self.problems if p.severity != ERROR)
+
+    @property
+    def files(self) -> int:
+        """How many distinct files hold at least one problem."""
+        return len({p.file for p in self.problems})
+
+    def summary(self) -> str:
+        """One closing line, e.g. ``2 errors, 1 warning in 2 files (1 ruleset checked)``.
+
+        >>> LintResult(rulesets=("a.toml",), problems=()).summary()
+        '0 errors, 0 warnings in 0 files (1 ruleset checked)'
+        """
+        return (
+            f"{_count(self.errors, 'error')}, {_count(self.warnings, 'warning')} "
+            f"in {_count(self.files, 'file')} ({_count(len(self.rulesets), 'ruleset')} checked)"
+        )
+
+
+def _count(n: int, noun: str) -> str:
+    return f"{n} {noun}" if n == 1 else f"{n} {noun}s"
+
+
+def _order(problem: Problem) -> tuple[str, int, int, str, str]:
+    # Problems without a line (a whole file missing, a key without a TOML position)
+    # come first in their file; errors before warnings on the same line.
+    return (
+        problem.file,
+        -1 if problem.line is None else problem.line,
+        0 if problem.severity == ERROR else 1,
+        problem.key or "",
+        problem.message,
+    )
+
+
+def collect(problems: Iterable[Problem], rulesets: Sequence[str]) -> LintResult:
+    """Deduplicate and order problems (the same term list may be read by two rulesets)."""
+    unique = dict.fromkeys(problems)
+    return LintResult(rulesets=tuple(rulesets), problems=tuple(sorted(unique, key=_order)))
+
+
+def _shorten(problem: Problem, base: Path | None) -> Problem:
+    if base is None:
+        return problem
+    try:
+        rel = Path(problem.file).resolve().relative_to(base.resolve())
+    except (ValueError, OSError):
+        return problem
+    return replace(problem, file=rel.as_posix())
+
+
+def lint(paths: Sequence[str | Path], *, relative_to: Path | None = None) -> LintResult:
+    """Every error and warning of the rulesets at ``paths``, each ruleset read in full.
+
+    A ruleset with errors does not stop the others: all are read, all are reported. Files
+    below ``relative_to`` (the current folder, for the CLI) are named relative to it.
+    """
+    found: list[Problem] = []
+    for path in paths:
+        found.extend(_shorten(p, relative_to) for p in load_problems(Path(path)))
+    return collect(found, [str(p) for p in paths])
+
+
+def format_problem(problem: Problem) -> str:
+    """``file:line [key]: error|warning: message``; line and key only where they exist.
+
+    >>> format_problem(Problem(file="r.toml", line=3, key="rules.x", message="unknown rule"))
+    'r.toml:3 [rules.x]: error: unknown rule'
+    """
+    return str(problem)
+
+
+def format_result(result: LintResult) -> list[str]:
+    """The lines `guard rules lint` prints: one per problem, then the summary."""
+    return [*(format_problem(p) for p in result.problems), result.summary()]
+
+
+def find_rulesets(root: Path) -> list[Path]:
+    """Every ``ruleset.toml`` below ``root``, skipping VCS folders and environments.
+
+    Used when `guard rules lint` or `guard rules test` get no path (as in a pre-commit
+    hook that runs once per commit): the conventional file name finds every ruleset.
+    """
+    found: list[Path] = []
+    for folder, dirs, files in os.walk(root):
+        dirs[:] = sorted(d for d in dirs if d not in _SKIP_DIRS)
+        if "ruleset.toml" in files:
+            found.append(Path(folder) / "ruleset.toml")
+    return sorted(found)
