@@ -16,6 +16,7 @@ from guard import __version__
 
 # Subcommand modules, each defining a click command object named `command`.
 COMMAND_MODULES: tuple[str, ...] = (
+    "guard.cli.rules",
 )
 
 
