@@ -12,7 +12,7 @@ from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
 from typing import Union
 
-EvidenceValue = Union[str, int, float, bool, None, tuple["EvidenceValue", ...]]
+EvidenceValue = Union[str, int, float, bool, None, tuple["EvidenceValue", ...]]  # noqa: UP007 (a recursive alias needs Union)
 """A value a machine can read from a finding: plain scalars and tuples of them."""
 
 
@@ -20,7 +20,9 @@ class TokenKind(enum.StrEnum):
     """What a token is. Literal kinds are kept whole by the tokenizer."""
 
     WORD = "word"
-    NUMBER = "number"  # digits, with decimal marks and an optional unit: 12, 3.5mm, 10 kg is two tokens
+    NUMBER = (
+        "number"  # digits, with decimal marks and an optional unit: 12, 3.5mm, 10 kg is two tokens
+    )
     URL = "url"
     EMAIL = "email"
     PATH = "path"
@@ -100,8 +102,9 @@ class Rewrite:
 
 
 class Action(enum.StrEnum):
-    """What a finding asks for."""
+    """What a finding asks for. A NOTE informs and never changes a verdict."""
 
+    NOTE = "note"
     FLAG = "flag"
     VETO = "veto"
 
@@ -119,7 +122,7 @@ class Verdict(enum.StrEnum):
 
     @classmethod
     def of(cls, action: Action) -> Verdict:
-        return cls(action.value)
+        return cls.ACCEPT if action is Action.NOTE else cls(action.value)
 
     @classmethod
     def worst(cls, verdicts: Iterable[Verdict]) -> Verdict:
@@ -184,6 +187,7 @@ class Finding:
 class RewriteVerdict:
     """A rewrite, the verdict on it, and every finding that bears on it.
 
+    ``findings`` holds the rewrite's own findings and the pair-level ones that count for it.
     ``overridden`` holds findings an allowed pair set aside (kept, so that an explanation
     can say so); ``allowed_by`` names that pair's origin.
     """
@@ -214,8 +218,8 @@ class Report:
 
     @property
     def findings(self) -> tuple[Finding, ...]:
+        """Every finding once: the pair's, then each rewrite's own."""
         out: list[Finding] = list(self.pair_findings)
         for rv in self.rewrites:
-            out.extend(rv.findings)
+            out.extend(f for f in rv.findings if f.rewrite is not None)
         return tuple(out)
-

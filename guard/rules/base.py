@@ -63,7 +63,8 @@ CheckFn = Callable[["Rewrite | None", PairContext, "RuleSettings"], Iterable[Fin
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Rule:
-    """A rule of the catalogue. ``check`` is pure; ``doc`` has an accepted and an objected example."""
+    """A rule of the catalogue. ``check`` is pure; ``doc`` shows a case it accepts and one
+    it objects to."""
 
     name: str
     scope: Scope

@@ -1,0 +1,119 @@
+"""The checking pipeline for one pair: tokenize -> align -> rules -> decide -> guarded text.
+
+A Guard holds one compiled ruleset and the list of active rules with their settings; both
+are read-only, so one Guard serves any number of threads. Nothing here does I/O.
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+from dataclasses import dataclass
+
+from guard.align import align, apply
+from guard.decide import decide, pair_verdict
+from guard.records import Finding, Report, RewriteVerdict, Verdict
+from guard.rules import REGISTRY, PairContext, Rule, Scope
+from guard.rules.words import PATTERN_TIMEOUT_S
+from guard.ruleset.model import CompiledRuleset, PatternHit, PatternTimeout, RuleSettings
+from guard.text.tokenize import tokenize
+
+
+@dataclass(frozen=True, slots=True)
+class _Active:
+    rule: Rule
+    settings: RuleSettings
+
+
+class Engine:
+    """Checks pairs against one compiled ruleset."""
+
+    __slots__ = ("_pair_rules", "_rewrite_rules", "ruleset")
+
+    def __init__(self, ruleset: CompiledRuleset) -> None:
+        self.ruleset = ruleset
+        active = [
+            _Active(rule, ruleset.rules[name])
+            for name, rule in REGISTRY.items()
+            if name in ruleset.rules and ruleset.rules[name].action is not None
+        ]
+        self._rewrite_rules = tuple(a for a in active if a.rule.scope is Scope.REWRITE)
+        self._pair_rules = tuple(a for a in active if a.rule.scope is Scope.PAIR)
+
+    def check(
+        self, source: str, proposal: str, *, lang: str | None = None, score: float | None = None
+    ) -> Report:
+        """Judge every rewrite that turns ``source`` into ``proposal``.
+
+        >>> from guard.api import load_ruleset
+        >>> r = Engine(load_ruleset("base")).check("teh cat", "the cat", lang="en")
+        >>> r.verdict, r.guarded
+        (<Verdict.ACCEPT: 'accept'>, 'the cat')
+        """
+        rs = self.ruleset
+        lang = lang or rs.default_language
+        if source == proposal:
+            return Report(
+                source=source,
+                proposal=proposal,
+                lang=lang,
+                verdict=Verdict.ACCEPT,
+                rewrites=(),
+                pair_findings=(),
+                guarded=source,
+                guarded_strict=source,
+                ruleset=rs.name,
+            )
+        rewrites = align(source, proposal)
+        hits, timeouts = _pattern_hits(rs, source)
+        ctx = PairContext(
+            source=source,
+            proposal=proposal,
+            lang=lang,
+            score=score,
+            source_tokens=tokenize(source),
+            proposal_tokens=tokenize(proposal),
+            rewrites=rewrites,
+            term_hits=rs.find_terms(source) if rs.terms else (),
+            pattern_hits=hits,
+            pattern_timeouts=timeouts,
+            ruleset=rs,
+            lexicon=rs.lexicon(lang),
+        )
+        per_rewrite: dict[int, list[Finding]] = defaultdict(list)
+        for rw in rewrites:
+            for a in self._rewrite_rules:
+                per_rewrite[rw.index].extend(a.rule.check(rw, ctx, a.settings))
+        pair_findings: list[Finding] = []
+        for a in self._pair_rules:
+            pair_findings.extend(a.rule.check(None, ctx, a.settings))
+        verdicts = decide(rewrites, per_rewrite, pair_findings, rs)
+        return Report(
+            source=source,
+            proposal=proposal,
+            lang=lang,
+            verdict=pair_verdict(verdicts),
+            rewrites=verdicts,
+            pair_findings=tuple(pair_findings),
+            guarded=_guarded(source, verdicts, keep=(Verdict.ACCEPT, Verdict.FLAG)),
+            guarded_strict=_guarded(source, verdicts, keep=(Verdict.ACCEPT,)),
+            ruleset=rs.name,
+        )
+
+
+def _pattern_hits(
+    rs: CompiledRuleset, text: str
+) -> tuple[tuple[PatternHit, ...], tuple[PatternTimeout, ...]]:
+    hits: list[PatternHit] = []
+    timeouts: list[PatternTimeout] = []
+    for entry in rs.patterns:
+        try:
+            for m in entry.compiled.finditer(text, timeout=PATTERN_TIMEOUT_S):
+                if m.end() > m.start():
+                    hits.append(PatternHit(start=m.start(), end=m.end(), entry=entry))
+        except TimeoutError:
+            timeouts.append(PatternTimeout(entry=entry))
+    return tuple(hits), tuple(timeouts)
+
+
+def _guarded(source: str, verdicts: tuple[RewriteVerdict, ...], keep: tuple[Verdict, ...]) -> str:
+    return apply(source, (v.rewrite for v in verdicts if v.verdict in keep))

@@ -1,0 +1,99 @@
+"""critical-word: the rewrite adds, removes or changes a meaning-critical word.
+
+Negations, units, dosage words and directions are listed per ruleset ([critical] files).
+A speller that drops "not" or turns "mg" into "mcg" changes what the text says.
+
+A speller that repairs a token no lexicon knows into a critical word ("nto" -> "not") adds
+nothing the writer did not mean; ``allow-typo-fix`` lets that through (rulesets for
+clinical text turn it off).
+
+Accepts: with "not" critical, "do not recieve" -> "do not receive"; "do nto stop" -> "do not stop".
+Vetoes: with "not" critical, "do not stop" -> "do now stop"; with "mg" critical, "5 mg" -> "5 mcg".
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from collections.abc import Iterator
+
+from guard.records import Action, Finding, Rewrite, Tier
+from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
+from guard.rules.words import content_tokens, protected, zipf
+from guard.ruleset.model import RuleSettings
+from guard.text.normalize import normalize_key
+
+NAME = "critical-word"
+
+
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+    assert rw is not None
+    critical = ctx.ruleset.critical
+    if not critical:
+        return
+    old = Counter(
+        k
+        for t in content_tokens(rw.old_tokens)
+        if (k := normalize_key(t.text, fold=True)) in critical
+    )
+    new = Counter(
+        k
+        for t in content_tokens(rw.new_tokens)
+        if (k := normalize_key(t.text, fold=True)) in critical
+    )
+    if old == new:
+        return
+    removed = sorted((old - new).elements())
+    added = sorted((new - old).elements())
+    if not removed and settings.option("allow-typo-fix", ctx.lang) and _typo_fix(ctx, rw, settings):
+        return
+    word = (removed or added)[0]
+    entry = critical[word]
+    yield finding(
+        NAME,
+        Tier.DOMAIN,
+        settings,
+        "the rewrite {change} critical word '{word}'",
+        rewrite=rw.index,
+        origin=entry.origin,
+        change="removes" if removed else "adds",
+        word=entry.term,
+        removed=tuple(removed),
+        added=tuple(added),
+    )
+
+
+def _typo_fix(ctx: PairContext, rw: Rewrite, settings: RuleSettings) -> bool:
+    """Every source word of the rewrite is unknown to the lexicon and the ruleset."""
+    old = content_tokens(rw.old_tokens)
+    below = settings.option("unknown-below", ctx.lang)
+    assert isinstance(below, float)
+    return (
+        ctx.lexicon is not None
+        and bool(old)
+        and all(zipf(ctx, t.text) < below and not protected(ctx, t.text) for t in old)
+    )
+
+
+RULE = Rule(
+    name=NAME,
+    scope=Scope.REWRITE,
+    tier=Tier.DOMAIN,
+    default_action=Action.VETO,
+    options={
+        "unknown-below": OptionSpec(
+            default=2.5,
+            type=float,
+            doc="a source word rarer than this Zipf counts as unknown (a likely typo): web "
+            "frequency lists hold frequent misspellings with real Zipf values",
+            per_lang=True,
+        ),
+        "allow-typo-fix": OptionSpec(
+            default=True,
+            type=bool,
+            doc="let a token no lexicon knows be repaired into a critical word",
+            per_lang=True,
+        ),
+    },
+    check=check,
+    doc=__doc__ or "",
+)

@@ -1,0 +1,71 @@
+"""foreign-word: the source word is common in another language the ruleset lists.
+
+Code-switching ("the Zeitgeist of...", "a déjà vu") is deliberate; a speller tuned on one
+language "fixes" the other. The rule objects when the word's Zipf in one of the ruleset's
+``other-languages`` is at least ``min-zipf`` and higher than in the pair's language.
+
+Accepts: "recieve" -> "receive" (not a word of another listed language).
+Flags: with other-languages = ["de"], "the Zeitgeist" -> "the Seitgeist".
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from guard.records import Action, Finding, Rewrite, Tier, TokenKind
+from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
+from guard.rules.words import zipf
+from guard.ruleset.model import RuleSettings
+
+NAME = "foreign-word"
+
+
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+    assert rw is not None
+    others = [lang for lang in ctx.ruleset.other_languages if lang != ctx.lang]
+    if not others:
+        return
+    min_zipf = settings.option("min-zipf", ctx.lang)
+    assert isinstance(min_zipf, float)
+    for tok in rw.old_tokens:
+        if tok.kind is not TokenKind.WORD:
+            continue
+        here = zipf(ctx, tok.text)
+        for lang in others:
+            lex = ctx.ruleset.lexicon(lang)
+            if lex is None:
+                continue
+            there = lex.zipf(tok.text)
+            if there >= min_zipf and there > here:
+                yield finding(
+                    NAME,
+                    Tier.EVIDENCE,
+                    settings,
+                    "'{word}' is a common {other} word (Zipf {zipf_other}); "
+                    "Zipf {zipf_here} in {lang}",
+                    rewrite=rw.index,
+                    word=tok.text,
+                    other=lang,
+                    lang=ctx.lang,
+                    zipf_other=there,
+                    zipf_here=here,
+                )
+                return
+
+
+RULE = Rule(
+    name=NAME,
+    scope=Scope.REWRITE,
+    tier=Tier.EVIDENCE,
+    default_action=Action.FLAG,
+    options={
+        "min-zipf": OptionSpec(
+            default=3.5,
+            type=float,
+            doc="Zipf in the other language from which a word counts",
+            per_lang=True,
+        ),
+    },
+    check=check,
+    doc=__doc__ or "",
+)

@@ -1,0 +1,107 @@
+"""letter-shape: ALLCAPS and internal-capital tokens (acronyms, brands) are vetoed; a
+capitalised word inside a sentence (a likely name) is flagged.
+
+Both yield to direction evidence: when no lexicon and no term list knows the source token
+and the speller moves it onto a protected term, or onto a word the lexicon knows that has
+the same letter shape and lies within ``max-fix-distance`` edits, the speller is fixing a
+typo ("HTTTP" -> "HTTP"), not erasing a deliberate token.
+
+Accepts: "HTTTP server" -> "HTTP server"; "teh" -> "the".
+Vetoes: "NASA" -> "Nasa"; "JSON" -> "Jason". Flags: "met Mrs Kowalczyk" -> "met Mrs Kowalski".
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from rapidfuzz.distance import OSA
+
+from guard.records import Action, Finding, Rewrite, Tier, Token, TokenKind
+from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
+from guard.rules.words import content_tokens, domain_known, protected, zipf
+from guard.ruleset.model import RuleSettings
+from guard.text.shape import Shape, shape_of
+
+NAME = "letter-shape"
+_SENTENCE_END = frozenset(".!?:;\n…。！？")
+
+
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+    assert rw is not None
+    new_tokens = content_tokens(rw.new_tokens)
+    new_texts = {t.text for t in new_tokens}
+    for tok in content_tokens(rw.old_tokens):
+        if tok.kind is not TokenKind.WORD or tok.text in new_texts:
+            continue
+        shape = shape_of(tok.text)
+        if shape in (Shape.ALLCAPS, Shape.INTERNAL_CAP) and sum(c.isalpha() for c in tok.text) >= 2:
+            action = None
+        elif shape is Shape.TITLE and not _sentence_start(ctx, tok):
+            action = Action.FLAG
+        else:
+            continue
+        if _is_typo_fix(ctx, tok.text, shape, rw, settings):
+            continue
+        yield finding(
+            NAME,
+            Tier.DOMAIN,
+            settings,
+            "the rewrite changes '{token}', whose letter shape ({shape}) marks it as deliberate",
+            rewrite=rw.index,
+            action=action,
+            token=tok.text,
+            shape=shape.value,
+        )
+        return
+
+
+def _sentence_start(ctx: PairContext, tok: Token) -> bool:
+    before = ctx.source[: tok.start].rstrip(" \t\"'“‘«(")
+    return not before or before[-1] in _SENTENCE_END
+
+
+def _is_typo_fix(
+    ctx: PairContext, old: str, shape: Shape, rw: Rewrite, settings: RuleSettings
+) -> bool:
+    below = settings.option("unknown-below", ctx.lang)
+    assert isinstance(below, float)
+    if protected(ctx, old) or zipf(ctx, old) >= below:
+        return False
+    new = rw.new.strip()
+    if not new:
+        return False
+    if domain_known(ctx, new):
+        return True
+    max_fix = settings.option("max-fix-distance", ctx.lang)
+    assert isinstance(max_fix, int)
+    return (
+        shape_of(new) is shape
+        and zipf(ctx, new) > 0.0
+        and OSA.distance(old.casefold(), new.casefold()) <= max_fix
+    )
+
+
+RULE = Rule(
+    name=NAME,
+    scope=Scope.REWRITE,
+    tier=Tier.DOMAIN,
+    default_action=Action.VETO,
+    options={
+        "unknown-below": OptionSpec(
+            default=2.5,
+            type=float,
+            doc="a source word rarer than this Zipf counts as unknown (a likely typo): web "
+            "frequency lists hold frequent misspellings with real Zipf values",
+            per_lang=True,
+        ),
+        "max-fix-distance": OptionSpec(
+            default=2,
+            type=int,
+            doc="largest edit distance at which an unknown token moved onto a known word "
+            "of the same shape counts as a typo fix",
+            per_lang=True,
+        ),
+    },
+    check=check,
+    doc=__doc__ or "",
+)

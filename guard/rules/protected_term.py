@@ -1,0 +1,56 @@
+"""protected-term: the rewrite touches a protected term found in the source.
+
+Terms come from the ruleset's term lists, each with a kind (acronym, code, name, term...)
+and a case policy. For a case-insensitive term, a change of letter case only leaves the
+term intact and is not this rule's business (letter-shape judges it).
+
+Accepts: with "Quillmate" protected, "Quillmate sycn" -> "Quillmate sync".
+Vetoes: with "Quillmate" protected, "Quillmate" -> "Quill mate", naming the term list
+file and line.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from guard.records import Action, Finding, Rewrite, Tier
+from guard.rules.base import PairContext, Rule, Scope, finding
+from guard.ruleset.model import CasePolicy, RuleSettings
+from guard.text.normalize import normalize_key
+
+NAME = "protected-term"
+
+
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+    assert rw is not None
+    for hit in ctx.term_hits:
+        inside = rw.start == rw.end and hit.start < rw.start < hit.end  # an insertion
+        if (hit.end <= rw.start or hit.start >= rw.end) and not inside:
+            continue
+        entry = hit.entry
+        if entry.case is CasePolicy.FOLD and normalize_key(rw.old, fold=True) == normalize_key(
+            rw.new, fold=True
+        ):
+            continue
+        yield finding(
+            NAME,
+            Tier.DOMAIN,
+            settings,
+            "the rewrite changes protected {kind} '{term}'",
+            rewrite=rw.index,
+            origin=entry.origin,
+            term=entry.term,
+            kind=entry.kind,
+            found=ctx.source[hit.start : hit.end],
+        )
+        return
+
+
+RULE = Rule(
+    name=NAME,
+    scope=Scope.REWRITE,
+    tier=Tier.DOMAIN,
+    default_action=Action.VETO,
+    check=check,
+    doc=__doc__ or "",
+)

@@ -1,0 +1,79 @@
+"""real-word: the source word is itself a common word of the pair's language.
+
+A real-word correction ("form" -> "from") needs context the speller may not have; and a
+correct but rare-to-the-speller word is exactly what a general speller overcorrects. The
+rule objects when the source word's Zipf frequency (wordfreq) is at least ``min-zipf``,
+unless the new word is at least ``min-gain`` Zipf more common: web-derived frequency lists
+hold frequent misspellings too ("teh" has a real Zipf value), and a fix toward a far more
+common word is the speller doing its job. Case-, spacing- and punctuation-only changes are
+not this rule's business.
+
+Accepts: "teh" -> "the" (Zipf gain above min-gain). Vetoes: "kernel" -> "kennel".
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from guard.records import Action, Finding, Refinement, Rewrite, RewriteKind, Tier
+from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
+from guard.rules.words import content_tokens, phrase_zipf
+from guard.ruleset.model import RuleSettings
+
+NAME = "real-word"
+SKIP = frozenset({Refinement.CASE, Refinement.SPACING, Refinement.PUNCTUATION})
+
+
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+    assert rw is not None
+    if ctx.lexicon is None or rw.refinement in SKIP or rw.kind is RewriteKind.INSERT:
+        return
+    if not content_tokens(rw.old_tokens):
+        return
+    min_zipf = settings.option("min-zipf", ctx.lang)
+    min_gain = settings.option("min-gain", ctx.lang)
+    assert isinstance(min_zipf, float) and isinstance(min_gain, float)
+    z_old = phrase_zipf(ctx, rw.old_tokens)
+    if z_old < min_zipf:
+        return
+    z_new = phrase_zipf(ctx, rw.new_tokens) if content_tokens(rw.new_tokens) else 0.0
+    if z_new - z_old >= min_gain:
+        return
+    yield finding(
+        NAME,
+        Tier.EVIDENCE,
+        settings,
+        "'{old}' is already a common {lang} word (Zipf {zipf_old}); '{new}' is Zipf {zipf_new}",
+        rewrite=rw.index,
+        old=rw.old,
+        new=rw.new,
+        lang=ctx.lang,
+        zipf_old=z_old,
+        zipf_new=z_new,
+        min_zipf=min_zipf,
+        min_gain=min_gain,
+    )
+
+
+RULE = Rule(
+    name=NAME,
+    scope=Scope.REWRITE,
+    tier=Tier.EVIDENCE,
+    default_action=Action.VETO,
+    options={
+        "min-zipf": OptionSpec(
+            default=3.0,
+            type=float,
+            doc="Zipf at or above which the source word counts as real",
+            per_lang=True,
+        ),
+        "min-gain": OptionSpec(
+            default=1.5,
+            type=float,
+            doc="Zipf by which the new word must be more common for the rewrite to pass",
+            per_lang=True,
+        ),
+    },
+    check=check,
+    doc=__doc__ or "",
+)

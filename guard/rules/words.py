@@ -1,0 +1,91 @@
+"""Word-level evidence shared by rules: which tokens of a rewrite are words, how common a
+word is in the pair's language, whether the ruleset or a lexicon knows it.
+
+Pure helpers over the pair context; no rule logic lives here.
+"""
+
+from __future__ import annotations
+
+import regex
+
+from guard.records import Rewrite, Token, TokenKind
+from guard.rules.base import PairContext
+
+PATTERN_TIMEOUT_S = 0.05
+"""Time limit for one ruleset pattern on one text (the `regex` module enforces it)."""
+
+_NOT_WORDS = frozenset({TokenKind.SPACE, TokenKind.PUNCT, TokenKind.SYMBOL})
+_APOSTROPHES = regex.compile(r"['’]")
+_LETTER = regex.compile(r"\p{L}")
+
+
+def content_tokens(tokens: tuple[Token, ...]) -> tuple[Token, ...]:
+    """The tokens that carry content: not whitespace, punctuation or symbols."""
+    return tuple(t for t in tokens if t.kind not in _NOT_WORDS)
+
+
+def word_tokens(tokens: tuple[Token, ...]) -> tuple[Token, ...]:
+    """Plain word tokens (letters, no literal kind)."""
+    return tuple(t for t in tokens if t.kind is TokenKind.WORD)
+
+
+def one_word_change(rw: Rewrite) -> tuple[str, str] | None:
+    """(old, new) when a rewrite turns one word into one word, else None.
+
+    >>> from guard.records import RewriteKind
+    >>> w = lambda s: Token(text=s, start=0, end=len(s), kind=TokenKind.WORD)
+    >>> rw = Rewrite(index=0, start=0, end=3, old="teh", new="the", new_start=0, new_end=3,
+    ...     kind=RewriteKind.REPLACE, refinement=None,
+    ...     old_tokens=(w("teh"),), new_tokens=(w("the"),))
+    >>> one_word_change(rw)
+    ('teh', 'the')
+    """
+    old = content_tokens(rw.old_tokens)
+    new = content_tokens(rw.new_tokens)
+    if len(old) == 1 and len(new) == 1:
+        return old[0].text, new[0].text
+    return None
+
+
+def zipf(ctx: PairContext, word: str) -> float:
+    """Zipf frequency of ``word`` in the pair's language; 0.0 when unknown or no lexicon.
+
+    Elided and contracted forms (l'homme, dell'acqua, don't) are looked up whole first,
+    then as the rarest of their parts, as wordfreq itself splits them.
+    """
+    lex = ctx.lexicon
+    if lex is None:
+        return 0.0
+    z = lex.zipf(word)
+    if z > 0.0 or not _APOSTROPHES.search(word):
+        return z
+    parts = [p for p in _APOSTROPHES.split(word) if _LETTER.search(p)]
+    if not parts:
+        return 0.0
+    return min(lex.zipf(p) for p in parts)
+
+
+def phrase_zipf(ctx: PairContext, tokens: tuple[Token, ...]) -> float:
+    """The rarest word of a phrase: a phrase is no more common than its rarest word."""
+    words = content_tokens(tokens)
+    if not words:
+        return 0.0
+    return min(zipf(ctx, t.text) for t in words)
+
+
+def protected(ctx: PairContext, text: str) -> bool:
+    """True when ``text`` is itself a protected term of the ruleset."""
+    return ctx.ruleset.lookup_term(text) is not None
+
+
+def domain_known(ctx: PairContext, text: str) -> bool:
+    """The ruleset knows ``text``: a protected term, or the whole text matches a pattern."""
+    if ctx.ruleset.lookup_term(text) is not None:
+        return True
+    for p in ctx.ruleset.patterns:
+        try:
+            if p.compiled.fullmatch(text, timeout=PATTERN_TIMEOUT_S):
+                return True
+        except TimeoutError:
+            continue
+    return False
