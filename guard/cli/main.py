@@ -17,6 +17,9 @@ from guard import __version__
 # Subcommand modules, each defining a click command object named `command`.
 COMMAND_MODULES: tuple[str, ...] = (
     "guard.cli.rules",
+    "guard.cli.check",
+    "guard.cli.filter",
+    "guard.cli.explain",
 )
 
 

@@ -12,6 +12,7 @@ This module never decides what is written, only how it lands.
 from __future__ import annotations
 
 import contextlib
+import io
 import os
 import sys
 import tempfile
@@ -20,9 +21,14 @@ from typing import TextIO
 
 
 @contextlib.contextmanager
-def atomic_output(path: str | None, *, stdout: TextIO | None = None) -> Iterator[TextIO]:
+def atomic_output(
+    path: str | None, *, stdout: TextIO | None = None, line_buffering: bool = False
+) -> Iterator[TextIO]:
     """A text stream for the report: ``path`` written atomically, or ``stdout`` (default
     ``sys.stdout``) when ``path`` is None or ``-``.
+
+    Output is always UTF-8 with ``\n`` line ends, whatever the locale says: reports are
+    data. ``line_buffering`` flushes standard output after every line, for streaming.
 
     >>> import pathlib, tempfile
     >>> target = pathlib.Path(tempfile.mkdtemp()) / "report.txt"
@@ -32,7 +38,8 @@ def atomic_output(path: str | None, *, stdout: TextIO | None = None) -> Iterator
     'complete\\n'
     """
     if path is None or path == "-":
-        yield stdout if stdout is not None else sys.stdout
+        with _utf8(stdout if stdout is not None else sys.stdout, line_buffering) as out:
+            yield out
         return
     folder = os.path.dirname(os.path.abspath(path))
     fd, tmp = tempfile.mkstemp(prefix=f".{os.path.basename(path)}.", suffix=".tmp", dir=folder)
@@ -48,6 +55,25 @@ def atomic_output(path: str | None, *, stdout: TextIO | None = None) -> Iterator
             os.unlink(tmp)
         raise
     _sync_folder(folder)
+
+
+@contextlib.contextmanager
+def _utf8(stream: TextIO, line_buffering: bool) -> Iterator[TextIO]:
+    """``stream``'s bytes as UTF-8 text; ``stream`` itself when it has no byte buffer."""
+    buffer = getattr(stream, "buffer", None)
+    if buffer is None:
+        yield stream
+        return
+    stream.flush()
+    wrapper = io.TextIOWrapper(
+        buffer, encoding="utf-8", newline="", line_buffering=line_buffering, write_through=False
+    )
+    try:
+        yield wrapper
+    finally:
+        with contextlib.suppress(OSError, ValueError):
+            wrapper.flush()
+        wrapper.detach()
 
 
 def _set_mode(tmp: str, path: str) -> None:

@@ -1,0 +1,233 @@
+"""What `check`, `filter` and `explain` share: options, ruleset loading, exit codes, progress.
+
+Exit codes (the same for every command here):
+
+- 0: nothing at or above the failing level (``--fail-on``);
+- 1: something is (for ``check``, a record that could not be read or checked counts as
+  failing, unless ``--fail-on never``: what was not checked was not guarded);
+- 2: a usage or ruleset error, reported before any record is read;
+- 130: interrupted (Ctrl-C); what was processed so far is told on stderr, and an
+  ``--output`` file is left as it was before the run.
+
+Ruleset default: ``./guard-rules.toml`` when that file exists in the current folder, else
+the bundled ``base`` ruleset. ``--rules`` may be given several times; the rulesets then act
+as one, later ones over earlier ones.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import time
+from collections.abc import Callable, Iterable, Iterator, Sequence
+from pathlib import Path
+from typing import Any, TextIO, TypeVar
+
+import click
+
+from guard import __version__
+from guard.batch import Checker, Outcome, Summary, guard_checker
+from guard.errors import RulesetError
+from guard.io.read import FORMATS, FieldNames, InputFormatError, Limits, detect_format
+
+EXIT_OK = 0
+EXIT_FAIL = 1
+EXIT_USAGE = 2
+EXIT_INTERRUPTED = 130
+
+RULES_FILE = "guard-rules.toml"
+
+F = TypeVar("F", bound=Callable[..., Any])
+
+
+def default_rules(folder: Path | None = None) -> tuple[str, ...]:
+    """``guard-rules.toml`` of ``folder`` (default: the current one) if it exists, else base."""
+    here = folder if folder is not None else Path.cwd()
+    candidate = here / RULES_FILE
+    return (str(candidate),) if candidate.is_file() else ("base",)
+
+
+def rules_option(f: F) -> F:
+    return click.option(
+        "--rules",
+        "rules",
+        multiple=True,
+        metavar="NAME|PATH",
+        help=f"Ruleset: a bundled name or a ruleset.toml path; repeatable. "
+        f"Default: ./{RULES_FILE} if it exists, else the bundled 'base'.",
+    )(f)
+
+
+def lang_option(f: F) -> F:
+    return click.option(
+        "--lang",
+        metavar="TAG",
+        default=None,
+        help="Language (BCP 47) of records that name none. Default: the ruleset's first.",
+    )(f)
+
+
+def jobs_option(f: F) -> F:
+    return click.option(
+        "--jobs",
+        "-j",
+        type=click.IntRange(min=1),
+        default=1,
+        show_default=True,
+        help="Worker processes. The output is the same as with one.",
+    )(f)
+
+
+def input_options(f: F) -> F:
+    """The options that say how to read records (format, field names, limits)."""
+    for option in reversed(
+        (
+            click.option(
+                "--input-format",
+                type=click.Choice(FORMATS),
+                default=None,
+                help="Format of every input. Default: from the file extension "
+                "(.jsonl .json .csv .tsv .txt, each optionally .gz); stdin is jsonl.",
+            ),
+            click.option(
+                "--field",
+                "fields",
+                multiple=True,
+                metavar="ROLE=NAME",
+                help="Read ROLE (source, proposal, lang, id, score, gold, candidates) from "
+                "the input field NAME; repeatable.",
+            ),
+            click.option(
+                "--max-record-bytes",
+                type=click.IntRange(min=1),
+                default=Limits().max_record_bytes,
+                show_default=True,
+                help="A longer record becomes an error record.",
+            ),
+            click.option(
+                "--max-tokens",
+                type=click.IntRange(min=1),
+                default=Limits().max_tokens,
+                show_default=True,
+                help="A source or proposal with more tokens becomes an error record.",
+            ),
+        )
+    ):
+        f = option(f)
+    return f
+
+
+def field_names(values: Sequence[str]) -> FieldNames:
+    """``--field ROLE=NAME`` values as FieldNames; a usage error for a bad one."""
+    roles = set(FieldNames.__dataclass_fields__)
+    chosen: dict[str, str] = {}
+    for value in values:
+        role, sep, name = value.partition("=")
+        if not sep or not name or role not in roles:
+            raise click.BadParameter(
+                f"{value!r}: expected ROLE=NAME with ROLE one of {', '.join(sorted(roles))}",
+                param_hint="--field",
+            )
+        chosen[role] = name
+    names = FieldNames(**chosen)
+    if names.source == names.proposal:
+        raise click.BadParameter("source and proposal name the same field", param_hint="--field")
+    return names
+
+
+def input_formats(files: Sequence[str], input_format: str | None) -> list[str]:
+    """The format of each input, or a usage error before anything is read."""
+    try:
+        return [detect_format(f, input_format) for f in files]
+    except InputFormatError as e:
+        raise click.UsageError(str(e)) from None
+
+
+def load_checker(refs: Sequence[str]) -> Checker:
+    """The in-process checker, or every ruleset problem on stderr and exit 2."""
+    try:
+        return guard_checker(tuple(refs))
+    except RulesetError as e:
+        for problem in e.problems:
+            click.echo(str(problem), err=True)
+        raise click.exceptions.Exit(EXIT_USAGE) from None
+
+
+def rule_docs() -> dict[str, str]:
+    """Each rule's description, for report formats that carry rule metadata."""
+    from guard.rules import REGISTRY
+
+    return {name: rule.doc for name, rule in REGISTRY.items()}
+
+
+def version() -> str:
+    return __version__
+
+
+def wants_colour(stream: TextIO) -> bool:
+    """Colour only on a terminal and only when NO_COLOR is unset or empty (no-color.org)."""
+    if os.environ.get("NO_COLOR"):
+        return False
+    try:
+        return stream.isatty()
+    except (AttributeError, ValueError):
+        return False
+
+
+class Progress:
+    """A one-line count on stderr, redrawn at most every few tenths of a second.
+
+    Shown only when stderr is a terminal, so logs and pipes never see it.
+    """
+
+    def __init__(self, stream: TextIO | None = None, *, every: float = 0.2) -> None:
+        self.stream = stream if stream is not None else sys.stderr
+        self.enabled = _isatty(self.stream)
+        self.every = every
+        self._last = 0.0
+        self._drawn = False
+
+    def update(self, summary: Summary) -> None:
+        if not self.enabled:
+            return
+        now = time.monotonic()
+        if now - self._last < self.every:
+            return
+        self._last = now
+        v = summary.verdicts
+        self.stream.write(
+            f"\r{summary.read} records: {v['veto']} veto, {v['flag']} flag, "
+            f"{summary.errors} errors "
+        )
+        self.stream.flush()
+        self._drawn = True
+
+    def close(self) -> None:
+        if self._drawn:
+            self.stream.write("\r\x1b[K")
+            self.stream.flush()
+
+
+def _isatty(stream: TextIO) -> bool:
+    try:
+        return stream.isatty()
+    except (AttributeError, ValueError):
+        return False
+
+
+def tally(
+    outcomes: Iterable[Outcome], summary: Summary, progress: Progress | None = None
+) -> Iterator[Outcome]:
+    """Count each outcome into ``summary`` as it passes (the caller counts it written)."""
+    for outcome in outcomes:
+        summary.add(outcome)
+        if progress is not None:
+            progress.update(summary)
+        yield outcome
+
+
+def interrupted(summary: Summary, command: str, output: str | None) -> click.exceptions.Exit:
+    """Tell what was done before Ctrl-C and give the exit to raise."""
+    kept = f"; {output} was left as it was" if output not in (None, "-") else ""
+    click.echo(f"guard {command}: interrupted; {summary.line()}{kept}", err=True)
+    return click.exceptions.Exit(EXIT_INTERRUPTED)
