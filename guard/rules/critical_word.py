@@ -18,7 +18,7 @@ from collections.abc import Iterator
 
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import content_tokens, protected, zipf
+from guard.rules.words import UNKNOWN_BELOW, content_tokens, protected, zipf
 from guard.ruleset.model import RuleSettings
 from guard.text.normalize import normalize_key
 
@@ -80,13 +80,7 @@ RULE = Rule(
     tier=Tier.DOMAIN,
     default_action=Action.VETO,
     options={
-        "unknown-below": OptionSpec(
-            default=2.5,
-            type=float,
-            doc="a source word rarer than this Zipf counts as unknown (a likely typo): web "
-            "frequency lists hold frequent misspellings with real Zipf values",
-            per_lang=True,
-        ),
+        "unknown-below": UNKNOWN_BELOW,
         "allow-typo-fix": OptionSpec(
             default=True,
             type=bool,

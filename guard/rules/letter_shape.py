@@ -18,7 +18,7 @@ from rapidfuzz.distance import OSA
 
 from guard.records import Action, Finding, Rewrite, Tier, Token, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import content_tokens, domain_known, protected, zipf
+from guard.rules.words import UNKNOWN_BELOW, content_tokens, domain_known, protected, zipf
 from guard.ruleset.model import RuleSettings
 from guard.text.shape import Shape, shape_of
 
@@ -87,13 +87,7 @@ RULE = Rule(
     tier=Tier.DOMAIN,
     default_action=Action.VETO,
     options={
-        "unknown-below": OptionSpec(
-            default=2.5,
-            type=float,
-            doc="a source word rarer than this Zipf counts as unknown (a likely typo): web "
-            "frequency lists hold frequent misspellings with real Zipf values",
-            per_lang=True,
-        ),
+        "unknown-below": UNKNOWN_BELOW,
         "max-fix-distance": OptionSpec(
             default=2,
             type=int,

@@ -16,8 +16,8 @@ from collections.abc import Iterator
 import regex
 
 from guard.records import LITERAL_KINDS, Action, Finding, Rewrite, Tier
-from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import content_tokens, domain_known, protected, zipf
+from guard.rules.base import PairContext, Rule, Scope, finding
+from guard.rules.words import UNKNOWN_BELOW, content_tokens, domain_known, protected, zipf
 from guard.ruleset.model import RuleSettings
 
 NAME = "literal-token"
@@ -68,13 +68,7 @@ RULE = Rule(
     tier=Tier.DOMAIN,
     default_action=Action.VETO,
     options={
-        "unknown-below": OptionSpec(
-            default=2.5,
-            type=float,
-            doc="a source word rarer than this Zipf counts as unknown (a likely typo): web "
-            "frequency lists hold frequent misspellings with real Zipf values",
-            per_lang=True,
-        ),
+        "unknown-below": UNKNOWN_BELOW,
     },
     check=check,
     doc=__doc__ or "",

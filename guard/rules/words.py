@@ -9,10 +9,19 @@ from __future__ import annotations
 import regex
 
 from guard.records import Rewrite, Token, TokenKind
-from guard.rules.base import PairContext
+from guard.rules.base import OptionSpec, PairContext
 
 PATTERN_TIMEOUT_S = 0.05
 """Time limit for one ruleset pattern on one text (the `regex` module enforces it)."""
+
+UNKNOWN_BELOW = OptionSpec(
+    default=2.5,
+    type=float,
+    doc="a source word rarer than this Zipf counts as unknown (a likely typo): web "
+    "frequency lists hold frequent misspellings with real Zipf values",
+    per_lang=True,
+)
+"""The option, shared by the rules that yield to typo fixes, that says what "unknown" is."""
 
 _NOT_WORDS = frozenset({TokenKind.SPACE, TokenKind.PUNCT, TokenKind.SYMBOL})
 _APOSTROPHES = regex.compile(r"['’]")
