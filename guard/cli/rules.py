@@ -14,6 +14,7 @@ a pre-commit hook needs no arguments.
 
 from __future__ import annotations
 
+import os
 import tempfile
 from collections.abc import Sequence
 from pathlib import Path
@@ -36,10 +37,17 @@ EXIT_FAIL = 1
 EXIT_ERROR = 2
 
 
+def _ref(ref: str) -> str:
+    """A bundled name as its file; a name that is also a folder here means the folder."""
+    if not is_bundled_name(ref):
+        return ref
+    return f".{os.sep}{ref}" if Path(ref).exists() else str(bundled_path(ref))
+
+
 def _targets(refs: Sequence[str]) -> list[str]:
     """The rulesets named (bundled names mapped to their files), or every one found below."""
     if refs:
-        return [str(bundled_path(r)) if is_bundled_name(r) else r for r in refs]
+        return [_ref(r) for r in refs]
     here = Path.cwd()
     found = linting.find_rulesets(here)
     if not found:
@@ -47,8 +55,17 @@ def _targets(refs: Sequence[str]) -> list[str]:
     return [str(p.relative_to(here)) for p in found]
 
 
-def _show_problems(error: RulesetError) -> None:
-    for problem in error.problems:
+def _display_base(refs: Sequence[str]) -> Path | None:
+    """Where output names files from: the current folder, unless every ruleset was named by
+    an absolute path (as scripts and tests do), in which case files keep absolute names."""
+    if refs and all(Path(r).is_absolute() for r in refs):
+        return None
+    return Path.cwd()
+
+
+def _show_problems(error: RulesetError, base: Path | None) -> None:
+    """A ruleset's problems on stderr, ordered and named as lint names them."""
+    for problem in linting.collect(error.problems, [], relative_to=base).problems:
         click.echo(linting.format_problem(problem), err=True)
 
 
@@ -66,10 +83,7 @@ def lint_command(ctx: click.Context, paths: tuple[str, ...], strict: bool) -> No
 
     Exit 2 on any error; with --strict, exit 1 on warnings alone; else 0.
     """
-    # Files are named as the user named rulesets: relative to here unless all paths given
-    # are absolute (as a script or a test passes them).
-    absolute = bool(paths) and all(Path(p).is_absolute() for p in paths)
-    result = linting.lint(_targets(paths), relative_to=None if absolute else Path.cwd())
+    result = linting.lint(_targets(paths), relative_to=_display_base(paths))
     for line in linting.format_result(result):
         click.echo(line)
     if result.errors:
@@ -85,12 +99,13 @@ def examples_command(ctx: click.Context, paths: tuple[str, ...], quiet: bool) ->
     """Run the examples each ruleset at PATH... carries; exit 1 if any fails."""
     outcomes: list[selftest.Outcome] = []
     broken = 0
+    base = _display_base(paths)
     for target in _targets(paths):
         try:
             ruleset = load_ruleset(target)
         except RulesetError as e:
             click.echo(f"{target}: cannot load the ruleset", err=True)
-            _show_problems(e)
+            _show_problems(e, base)
             broken += 1
             continue
         results = selftest.run_examples(ruleset)
@@ -98,10 +113,11 @@ def examples_command(ctx: click.Context, paths: tuple[str, ...], quiet: bool) ->
         click.echo(f"{ruleset.name} ({target}): {len(results)} {noun}")
         for outcome in results:
             if not (quiet and outcome.passed):
-                for line in selftest.format_outcome(outcome):
+                for line in selftest.format_outcome(outcome, relative_to=base):
                     click.echo(f"  {line}")
         outcomes.extend(results)
-    click.echo(selftest.summary(outcomes) + (f", {broken} rulesets not loaded" if broken else ""))
+    not_loaded = f", {broken} not loaded" if broken else ""
+    click.echo(selftest.summary(outcomes) + not_loaded)
     if broken:
         ctx.exit(EXIT_ERROR)
     ctx.exit(EXIT_OK if all(o.passed for o in outcomes) else EXIT_FAIL)
@@ -116,11 +132,11 @@ def examples_command(ctx: click.Context, paths: tuple[str, ...], quiet: bool) ->
 def show_command(ctx: click.Context, ref: str, fmt: str) -> None:
     """Show the ruleset NAME|PATH as resolved after extends, with where each setting came from."""
     try:
-        ruleset = load_ruleset(ref)
+        ruleset = load_ruleset(_ref(ref))
     except RulesetError as e:
-        _show_problems(e)
+        _show_problems(e, _display_base([ref]))
         ctx.exit(EXIT_ERROR)
-    click.echo(RENDERERS[fmt](describe(ruleset)))
+    click.echo(RENDERERS[fmt](describe(ruleset, relative_to=_display_base([ref]))))
 
 
 def _checker(ruleset: CompiledRuleset, lang: str | None) -> diffing.PairChecker:
@@ -139,10 +155,10 @@ def _checker(ruleset: CompiledRuleset, lang: str | None) -> diffing.PairChecker:
 def _load_version(which: str, ref: str, workdir: Path) -> CompiledRuleset | None:
     """Load one side of a diff, reporting why it cannot be loaded on stderr."""
     try:
-        return load_ruleset(diffing.materialize(ref, workdir))
+        return load_ruleset(diffing.materialize(_ref(ref), workdir))
     except RulesetError as e:
         click.echo(f"{which} ruleset {ref}: cannot load", err=True)
-        _show_problems(e)
+        _show_problems(e, _display_base([ref]))
     except GuardError as e:
         click.echo(f"{which} ruleset: {e}", err=True)
     return None

@@ -71,20 +71,33 @@ def _order(problem: Problem) -> tuple[str, int, int, str, str]:
     )
 
 
-def collect(problems: Iterable[Problem], rulesets: Sequence[str]) -> LintResult:
-    """Deduplicate and order problems (the same term list may be read by two rulesets)."""
-    unique = dict.fromkeys(problems)
+def collect(
+    problems: Iterable[Problem], rulesets: Sequence[str], *, relative_to: Path | None = None
+) -> LintResult:
+    """Deduplicate and order problems (the same term list may be read by two rulesets).
+
+    Files below ``relative_to`` are named relative to it.
+    """
+    unique = dict.fromkeys(_shorten(p, relative_to) for p in problems)
     return LintResult(rulesets=tuple(rulesets), problems=tuple(sorted(unique, key=_order)))
 
 
-def _shorten(problem: Problem, base: Path | None) -> Problem:
+def shorten_path(file: str, base: Path | None) -> str:
+    """``file`` relative to ``base`` when it lies below it, else unchanged.
+
+    >>> shorten_path("/srv/rules/terms/a.txt", Path("/srv/rules")), shorten_path("/x", None)
+    ('terms/a.txt', '/x')
+    """
     if base is None:
-        return problem
+        return file
     try:
-        rel = Path(problem.file).resolve().relative_to(base.resolve())
+        return Path(file).resolve().relative_to(base.resolve()).as_posix()
     except (ValueError, OSError):
-        return problem
-    return replace(problem, file=rel.as_posix())
+        return file
+
+
+def _shorten(problem: Problem, base: Path | None) -> Problem:
+    return replace(problem, file=shorten_path(problem.file, base))
 
 
 def lint(paths: Sequence[str | Path], *, relative_to: Path | None = None) -> LintResult:
@@ -95,8 +108,8 @@ def lint(paths: Sequence[str | Path], *, relative_to: Path | None = None) -> Lin
     """
     found: list[Problem] = []
     for path in paths:
-        found.extend(_shorten(p, relative_to) for p in load_problems(Path(path)))
-    return collect(found, [str(p) for p in paths])
+        found.extend(load_problems(Path(path)))
+    return collect(found, [str(p) for p in paths], relative_to=relative_to)
 
 
 def format_problem(problem: Problem) -> str:

@@ -11,11 +11,13 @@ from __future__ import annotations
 
 import difflib
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
+from pathlib import Path
 
 from guard.errors import GuardError
-from guard.records import Finding, Report, RewriteVerdict, Verdict
+from guard.records import Finding, Origin, Report, RewriteVerdict, Verdict
 from guard.ruleset.model import CompiledRuleset, Example
+from guard.vocab.lint import shorten_path
 
 Checker = Callable[[Example], Report]
 """Checks one example's pair; the default runs guard.api.Guard over the ruleset."""
@@ -80,10 +82,13 @@ def deciding_findings(rv: RewriteVerdict) -> tuple[Finding, ...]:
     return tuple(f for f in rv.findings if f.action.value == rv.verdict.value)
 
 
-def _label(outcome: Outcome) -> str:
+def _origin(origin: Origin, base: Path | None) -> str:
+    return str(replace(origin, file=shorten_path(origin.file, base)))
+
+
+def _label(outcome: Outcome, base: Path | None) -> str:
     ex = outcome.example
-    where = str(ex.origin)
-    return f"{where}  {ex.source!r} -> {ex.proposal!r}"
+    return f"{_origin(ex.origin, base)}  {ex.source!r} -> {ex.proposal!r}"
 
 
 def _verdict_lines(pair: str, rewrites: Sequence[str] | None, names: Sequence[str]) -> list[str]:
@@ -114,11 +119,14 @@ def verdict_diff(outcome: Outcome) -> list[str]:
     return list(difflib.unified_diff(expected, actual, "expected", "actual", n=1, lineterm=""))
 
 
-def format_outcome(outcome: Outcome) -> list[str]:
-    """``PASS``/``FAIL`` and the example; for a failure, everything needed to see why."""
+def format_outcome(outcome: Outcome, *, relative_to: Path | None = None) -> list[str]:
+    """``PASS``/``FAIL`` and the example; for a failure, everything needed to see why.
+
+    Files below ``relative_to`` are named relative to it.
+    """
     if outcome.passed:
-        return [f"PASS  {_label(outcome)}"]
-    lines = [f"FAIL  {_label(outcome)}"]
+        return [f"PASS  {_label(outcome, relative_to)}"]
+    lines = [f"FAIL  {_label(outcome, relative_to)}"]
     ex = outcome.example
     if outcome.error is not None:
         lines.append(f"      check failed: {outcome.error}")
@@ -136,11 +144,11 @@ def format_outcome(outcome: Outcome) -> list[str]:
         lines.append(f"      rewrite {i + 1} {change}: {rv.verdict.value}{want}")
         decided = deciding_findings(rv)
         for f in decided:
-            origin = f" [{f.origin}]" if f.origin is not None else ""
+            origin = f" [{_origin(f.origin, relative_to)}]" if f.origin is not None else ""
             verb = "set aside" if rv.verdict is Verdict.ACCEPT else f.action.value
             lines.append(f"        {f.rule} ({verb}): {f.message}{origin}")
         if rv.allowed_by is not None:
-            lines.append(f"        allowed by {rv.allowed_by}")
+            lines.append(f"        allowed by {_origin(rv.allowed_by, relative_to)}")
     for f in report.pair_findings:
         lines.append(f"      pair finding {f.rule} ({f.action.value}): {f.message}")
     lines.extend(f"      {d}" for d in verdict_diff(outcome))

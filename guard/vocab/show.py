@@ -11,18 +11,21 @@ from __future__ import annotations
 import json
 from collections import Counter
 from collections.abc import Callable, Mapping
+from pathlib import Path
 from typing import Any
 
 from guard.records import Origin
 from guard.ruleset.model import CompiledRuleset, PairEntry
+from guard.vocab.lint import shorten_path
 
 Description = dict[str, Any]
 
 
-def _where(origin: Origin | None) -> str | None:
+def _where(origin: Origin | None, base: Path | None) -> str | None:
     if origin is None:
         return None
-    return origin.file if origin.line is None else f"{origin.file}:{origin.line}"
+    file = shorten_path(origin.file, base)
+    return file if origin.line is None else f"{file}:{origin.line}"
 
 
 def _plain(value: object) -> object:
@@ -37,19 +40,23 @@ def _plain(value: object) -> object:
     return str(value)
 
 
-def _pair_counts(pairs: Mapping[tuple[str, str], PairEntry]) -> dict[str, int]:
-    return dict(sorted(Counter(p.origin.file for p in pairs.values()).items()))
+def _pair_counts(pairs: Mapping[tuple[str, str], PairEntry], base: Path | None) -> dict[str, int]:
+    return dict(sorted(Counter(shorten_path(p.origin.file, base) for p in pairs.values()).items()))
 
 
-def describe(ruleset: CompiledRuleset) -> Description:
-    """The resolved ruleset as plain data (the JSON form of `guard rules show`)."""
+def describe(ruleset: CompiledRuleset, *, relative_to: Path | None = None) -> Description:
+    """The resolved ruleset as plain data (the JSON form of `guard rules show`).
+
+    Files below ``relative_to`` are named relative to it.
+    """
+    base = relative_to
     rules: list[dict[str, Any]] = []
     for name, settings in ruleset.rules.items():
         options = [
             {
                 "key": key,
                 "value": _plain(value),
-                "from": _where(settings.origins.get(key)),
+                "from": _where(settings.origins.get(key), base),
             }
             for key, value in settings.options.items()
         ]
@@ -60,27 +67,29 @@ def describe(ruleset: CompiledRuleset) -> Description:
                     {
                         "key": path,
                         "value": _plain(value),
-                        "from": _where(settings.origins.get(path)),
+                        "from": _where(settings.origins.get(path), base),
                     }
                 )
         rules.append(
             {
                 "name": name,
                 "action": "off" if settings.action is None else settings.action.value,
-                "from": _where(settings.origins.get("action")),
+                "from": _where(settings.origins.get("action"), base),
                 "options": options,
             }
         )
-    lists = Counter((t.origin.file, t.kind, t.case.value) for t in ruleset.terms)
+    lists = Counter(
+        (shorten_path(t.origin.file, base), t.kind, t.case.value) for t in ruleset.terms
+    )
     kinds = Counter(t.kind for t in ruleset.terms)
-    critical = Counter(t.origin.file for t in ruleset.critical.values())
+    critical = Counter(shorten_path(t.origin.file, base) for t in ruleset.critical.values())
     return {
         "name": ruleset.name,
         "description": ruleset.description,
         "languages": list(ruleset.languages),
         "other_languages": list(ruleset.other_languages),
-        "chain": [f for f in ruleset.files if f.endswith(".toml")],
-        "files": list(ruleset.files),
+        "chain": [shorten_path(f, base) for f in ruleset.files if f.endswith(".toml")],
+        "files": [shorten_path(f, base) for f in ruleset.files],
         "rules": rules,
         "terms": {
             "total": len(ruleset.terms),
@@ -91,14 +100,14 @@ def describe(ruleset: CompiledRuleset) -> Description:
             ],
         },
         "patterns": [
-            {"name": p.name, "kind": p.kind, "regex": p.source, "from": _where(p.origin)}
+            {"name": p.name, "kind": p.kind, "regex": p.source, "from": _where(p.origin, base)}
             for p in ruleset.patterns
         ],
         "pairs": {
             "blocked": len(ruleset.blocked),
             "allowed": len(ruleset.allowed),
-            "blocked_by_file": _pair_counts(ruleset.blocked),
-            "allowed_by_file": _pair_counts(ruleset.allowed),
+            "blocked_by_file": _pair_counts(ruleset.blocked, base),
+            "allowed_by_file": _pair_counts(ruleset.allowed, base),
         },
         "critical": {"total": len(ruleset.critical), "by_file": dict(sorted(critical.items()))},
         "examples": len(ruleset.examples),
