@@ -218,12 +218,11 @@ def _read_one(
 
 
 def _open(path: str, stdin: IO[bytes] | None) -> IO[bytes]:
-    if path == STDIN:
-        stream: IO[bytes] = stdin if stdin is not None else sys.stdin.buffer
-    else:
-        stream = open(path, "rb")  # noqa: SIM115 - closed by the caller
-    if path.lower().endswith(".gz"):
-        return gzip.GzipFile(fileobj=stream, mode="rb")  # type: ignore[return-value]
+    gz = path.lower().endswith(".gz")
+    if path != STDIN:
+        # closed by the caller
+        return gzip.open(path, "rb") if gz else open(path, "rb")  # type: ignore[return-value]  # noqa: SIM115
+    stream: IO[bytes] = stdin if stdin is not None else sys.stdin.buffer
     return stream
 
 
@@ -267,12 +266,15 @@ def _lines(stream: IO[bytes], display: str, max_bytes: int) -> Iterator[_Line]:
                         broken = str(e)
                         break
                     size += len(more)
-                    if not more or more.endswith(b"\n"):
+                    if more.endswith(b"\n"):
+                        size -= 2 if more.endswith(b"\r\n") else 1  # the line ending
+                        break
+                    if not more:
                         break
                 yield _Line(
                     number,
                     None,
-                    f"record longer than the limit of {max_bytes} bytes (at least {size})",
+                    f"record longer than the limit of {max_bytes} bytes ({size})",
                     head,
                 )
                 if broken is not None:
@@ -589,6 +591,7 @@ def _table(
     pending_start = 0
     pending_bytes = 0
     in_quote = False
+    emitted = 0  # records yielded after the header
 
     def err(number: int, reason: str, raw: str | bytes | None) -> ErrorRecord:
         return ErrorRecord(
@@ -658,11 +661,14 @@ def _table(
         out = record(pending_start, "\n".join(pending))
         pending = []
         if out is not None:
+            emitted += 1
             yield out
     if pending:
         yield err(pending_start, "unterminated quoted cell at the end of the file", pending[0])
     elif header is None and header_error is None:
         yield ErrorRecord(file=display, line=None, reason="empty file: no header")
+    elif header_error is not None and not emitted:
+        yield ErrorRecord(file=display, line=1, reason=header_error)
 
 
 def _header_problem(cells: list[str], names: FieldNames) -> str | None:
