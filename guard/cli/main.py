@@ -20,6 +20,10 @@ COMMAND_MODULES: tuple[str, ...] = (
     "guard.cli.check",
     "guard.cli.filter",
     "guard.cli.explain",
+    "guard.cli.harvest",
+    "guard.cli.typos",
+    "guard.cli.propose",
+    "guard.cli.score",
 )
 
 

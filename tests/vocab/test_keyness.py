@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 
 import pytest
-from scipy.stats import chi2, chi2_contingency
+from scipy.stats import chi2, chi2_contingency  # type: ignore[import-untyped]
 
 from guard.vocab.keyness import (
     NOMINAL_REFERENCE_TOKENS,
