@@ -1,11 +1,12 @@
 """Regenerate queries.jsonl: catalogue searches of the invented Harbourline Marine Supply,
 each with the rewrite a general-language speller might propose.
 
-About half the pairs are good fixes of real typos (the typo is made here, by one seeded
-keyboard slip, on a word that is not a protected term); about half are overcorrections
-(part numbers, invented brand and model names, units, acronyms, marine words, sizes and
-negations "corrected" into something else); a few are mixed (a good fix and a bad one in
-the same query) and a few leave the query unchanged. Every record carries ``gold``, the
+About half the pairs are good fixes of real typos: the typo is made here, by one seeded
+keyboard slip, on a word that is not a protected term; a few slips happen to make another
+real word, which word frequencies cannot tell from a deliberate word. About half are
+overcorrections: part numbers, invented brand and model names, units, acronyms, marine
+words, sizes and negations "corrected" into something else. A few are mixed (a good fix
+and a bad one in the same query) and a few leave the query unchanged. Every record carries ``gold``, the
 text the searcher meant, and ``kind``, what the pair demonstrates.
 
 The output depends only on the seed, the lists below, the parts-catalogue term lists and
@@ -228,7 +229,9 @@ OVERCORRECTIONS: list[tuple[str, str, str]] = [
 N_OVER = 80  # overcorrections (every wrong form above at least once)
 N_MIXED = 10  # a good fix and an overcorrection in one query
 N_SAME = 8  # proposal equals source
-N_FIX = TOTAL - N_OVER - N_MIXED - N_SAME
+N_REAL = 6  # good fixes of slips that happen to make another real word (pimp -> pump)
+N_FIX = TOTAL - N_OVER - N_MIXED - N_SAME - N_REAL
+REAL_ZIPF = 3.0  # a slip this common in the language counts as a real word
 
 # QWERTY neighbours, for substitution slips (common practice, no source: the commonest
 # typing error is a neighbouring key).
@@ -285,8 +288,14 @@ def is_word(text: str, lang: str) -> bool:
     return zipf_frequency(text, lang) > 0.0
 
 
-def make_fix(rng: random.Random, query: str, lang: str, banned: set[str]) -> str | None:
-    """``query`` with one word misspelt by one slip, or None if no word can take one."""
+def make_fix(
+    rng: random.Random, query: str, lang: str, banned: set[str], *, real: bool = False
+) -> str | None:
+    """``query`` with one word misspelt by one slip, or None if no word can take one.
+
+    The slip makes a non-word; with ``real``, a word of the language at least REAL_ZIPF
+    common (the hard case: the source looks right to a frequency list).
+    """
     words = query.split(" ")
     spots = [
         i
@@ -295,7 +304,15 @@ def make_fix(rng: random.Random, query: str, lang: str, banned: set[str]) -> str
     ]
     rng.shuffle(spots)
     for i in spots:
-        options = sorted({s for s in slips(words[i]) if s != words[i] and not is_word(s, lang)})
+        options = sorted(
+            {
+                s
+                for s in slips(words[i])
+                if s != words[i]
+                and s.casefold() not in banned
+                and (zipf_frequency(s, lang) >= REAL_ZIPF if real else not is_word(s, lang))
+            }
+        )
         if options:
             bad = list(words)
             bad[i] = rng.choice(options)
@@ -370,6 +387,17 @@ def build() -> list[dict[str, str]]:
             typo = make_fix(rng, q, lang, banned)
             if typo is not None:
                 fixes += add(lang, typo, q, q, "fix")
+
+    # Good fixes of slips that made another real word: the guard's known cost.
+    real = 0
+    while real < N_REAL:
+        rng.shuffle(order)
+        for lang, q in order:
+            if real == N_REAL:
+                break
+            typo = make_fix(rng, q, lang, banned, real=True)
+            if typo is not None:
+                real += add(lang, typo, q, q, "fix-real-word")
 
     # Unchanged: the speller proposes the text as it is.
     for lang, q in rng.sample(pool, N_SAME):
