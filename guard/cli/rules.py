@@ -109,8 +109,7 @@ def examples_command(ctx: click.Context, paths: tuple[str, ...], quiet: bool) ->
             broken += 1
             continue
         results = selftest.run_examples(ruleset)
-        noun = "example" if len(results) == 1 else "examples"
-        click.echo(f"{ruleset.name} ({target}): {len(results)} {noun}")
+        click.echo(f"{ruleset.name} ({target}): {linting.plural(len(results), 'example')}")
         for outcome in results:
             if not (quiet and outcome.passed):
                 for line in selftest.format_outcome(outcome, relative_to=base):

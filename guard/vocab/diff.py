@@ -6,10 +6,11 @@ on). A rewrite that goes from veto to accept is the change a reviewer must see b
 ships, so it is counted apart and makes the CLI fail.
 
 A version is a path, a bundled ruleset's name, or ``REV:PATH``: the ruleset at PATH as it
-was at git revision REV. Such a version is exported into a temporary folder, with its term
-lists and the rulesets it extends by relative path; git runs without a shell, in the
-repository that holds PATH. Bundled names inside ``extends`` resolve to the installed
-rulesets, not to their state at REV. Nothing here prints or exits.
+was at git revision REV. Its folder at REV is exported into a temporary folder: the loader
+keeps term lists and relative ``extends`` inside a ruleset's folder, so the folder is the
+whole ruleset. git runs without a shell, in the repository that holds PATH. Bundled names
+in ``extends`` resolve to the installed rulesets, not to their state at REV. Nothing here
+prints or exits.
 """
 
 from __future__ import annotations
@@ -18,7 +19,6 @@ import io
 import os
 import subprocess
 import tarfile
-import tomllib
 from collections import Counter
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
@@ -27,7 +27,8 @@ from pathlib import Path, PurePosixPath
 from guard.errors import GuardError
 from guard.io.read import ErrorRecord, InputRecord, Record
 from guard.records import Report, RewriteVerdict, Verdict
-from guard.ruleset.bundled import is_bundled_name
+from guard.ruleset.bundled import RULESET_FILE
+from guard.vocab.lint import plural
 from guard.vocab.selftest import deciding_findings
 
 
@@ -93,72 +94,20 @@ def _repo_of(path: Path) -> tuple[Path, PurePosixPath]:
     return root, PurePosixPath(inside.as_posix())
 
 
-def _normal(path: PurePosixPath) -> PurePosixPath | None:
-    """``a/b/../c`` -> ``a/c``; None when the path climbs out of the repository."""
-    parts: list[str] = []
-    for part in path.parts:
-        if part == "..":
-            if not parts:
-                return None
-            parts.pop()
-        elif part != ".":
-            parts.append(part)
-    return PurePosixPath(*parts)
+def _kind(root: Path, rev: str, path: PurePosixPath) -> str | None:
+    """``blob``, ``tree``, or None when ``path`` does not exist at ``rev``."""
+    try:
+        return _git(root, "cat-file", "-t", f"{rev}:{path.as_posix()}").decode().strip()
+    except RevisionError:
+        return None
 
 
-class _Exporter:
-    """Copies folders of one revision into a temporary folder, keeping repository layout."""
-
-    def __init__(self, root: Path, rev: str, dest: Path) -> None:
-        self.root = root
-        self.rev = rev
-        self.dest = dest
-        self.folders: list[PurePosixPath] = []
-        self.seen: set[PurePosixPath] = set()
-
-    def _covered(self, folder: PurePosixPath) -> bool:
-        return any(folder == f or f in folder.parents or f == PurePosixPath() for f in self.folders)
-
-    def folder(self, folder: PurePosixPath) -> None:
-        if self._covered(folder):
-            return
-        spec = "." if folder == PurePosixPath() else folder.as_posix()
-        data = _git(self.root, "archive", "--format=tar", self.rev, "--", spec)
-        with tarfile.open(fileobj=io.BytesIO(data)) as tar:
-            tar.extractall(self.dest, filter="data")
-        self.folders.append(folder)
-
-    def kind(self, path: PurePosixPath) -> str | None:
-        try:
-            return (
-                _git(self.root, "cat-file", "-t", f"{self.rev}:{path.as_posix()}").decode().strip()
-            )
-        except RevisionError:
-            return None
-
-    def ruleset(self, path: PurePosixPath) -> None:
-        """Export the folder of the ruleset at ``path`` and, in turn, what it extends by path."""
-        if path in self.seen:
-            return
-        self.seen.add(path)
-        self.folder(path.parent)
-        try:
-            data = tomllib.loads((self.dest / path).read_text(encoding="utf-8"))
-        except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
-            return  # the loader reports it, with file and line
-        head = data.get("ruleset")
-        extends = head.get("extends") if isinstance(head, dict) else None
-        for entry in extends if isinstance(extends, list) else ():
-            if not isinstance(entry, str) or is_bundled_name(entry):
-                continue
-            target = _normal(path.parent / PurePosixPath(entry.replace("\\", "/")))
-            if target is None:
-                continue
-            kind = self.kind(target)
-            if kind == "tree":
-                self.ruleset(target / "ruleset.toml")
-            elif kind == "blob":
-                self.ruleset(target)
+def _export(root: Path, rev: str, folder: PurePosixPath, dest: Path) -> None:
+    """Copy ``folder`` as it was at ``rev`` into ``dest``, keeping the repository layout."""
+    spec = "." if folder == PurePosixPath() else folder.as_posix()
+    data = _git(root, "archive", "--format=tar", rev, "--", spec)
+    with tarfile.open(fileobj=io.BytesIO(data)) as tar:
+        tar.extractall(dest, filter="data")
 
 
 def materialize(ref: str, workdir: Path) -> str:
@@ -174,14 +123,13 @@ def materialize(ref: str, workdir: Path) -> str:
         _git(root, "rev-parse", "--verify", "--quiet", f"{parsed.rev}^{{commit}}")
     except RevisionError as e:
         raise RevisionError(f"{ref}: no revision {parsed.rev!r} in {root}") from e
-    exporter = _Exporter(root, parsed.rev, workdir)
-    kind = exporter.kind(inside)
+    kind = _kind(root, parsed.rev, inside)
     if kind == "tree":
-        inside = inside / "ruleset.toml"
-        kind = exporter.kind(inside)
+        inside = inside / RULESET_FILE
+        kind = _kind(root, parsed.rev, inside)
     if kind != "blob":
         raise RevisionError(f"{ref}: no file {inside.as_posix()} at revision {parsed.rev}")
-    exporter.ruleset(inside)
+    _export(root, parsed.rev, inside.parent, workdir)
     return str(workdir / inside)
 
 
@@ -293,8 +241,9 @@ def _v(verdict: Verdict | None) -> str:
 def format_diff(result: DiffResult, *, old_name: str, new_name: str) -> list[str]:
     """The summary of verdict moves, then each changed rewrite, then unreadable records."""
     lines = [
-        f"{old_name} -> {new_name}: {result.pairs} pairs, {result.rewrites} rewrites, "
-        f"{len(result.changes)} changed in {result.pairs_changed} pairs",
+        f"{old_name} -> {new_name}: {plural(result.pairs, 'pair')}, "
+        f"{plural(result.rewrites, 'rewrite')}, {len(result.changes)} changed in "
+        f"{plural(result.pairs_changed, 'pair')}",
     ]
     moved = sorted(
         ((k, n) for k, n in result.transitions.items() if k[0] != k[1]),
@@ -318,6 +267,5 @@ def format_diff(result: DiffResult, *, old_name: str, new_name: str) -> list[str
     for e in result.errors:
         lines.append(f"{e.where}: error: {e.reason}")
     if result.loosened:
-        noun = "rewrite" if result.loosened == 1 else "rewrites"
-        lines.append(f"{result.loosened} {noun} went from veto to accept")
+        lines.append(f"{plural(result.loosened, 'rewrite')} went from veto to accept")
     return lines

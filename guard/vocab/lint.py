@@ -50,12 +50,17 @@ class LintResult:
         '0 errors, 0 warnings in 0 files (1 ruleset checked)'
         """
         return (
-            f"{_count(self.errors, 'error')}, {_count(self.warnings, 'warning')} "
-            f"in {_count(self.files, 'file')} ({_count(len(self.rulesets), 'ruleset')} checked)"
+            f"{plural(self.errors, 'error')}, {plural(self.warnings, 'warning')} "
+            f"in {plural(self.files, 'file')} ({plural(len(self.rulesets), 'ruleset')} checked)"
         )
 
 
-def _count(n: int, noun: str) -> str:
+def plural(n: int, noun: str) -> str:
+    """``1 file``, ``2 files``.
+
+    >>> plural(1, "file"), plural(0, "error")
+    ('1 file', '0 errors')
+    """
     return f"{n} {noun}" if n == 1 else f"{n} {noun}s"
 
 
