@@ -19,11 +19,9 @@ from guard.report.base import visible
 
 _ASKS = {"veto": "asks to refuse it", "flag": "asks to hold it for review"}
 _KIND_WORDS = {
-    "replace": "replaces",
-    "split": "splits",
-    "join": "joins",
-    "insert": "inserts",
-    "delete": "deletes",
+    "replace": ("replaces", "with"),
+    "split": ("splits", "into"),
+    "join": ("joins", "into"),
 }
 
 
@@ -85,8 +83,9 @@ def _rewrite_lines(rv: RewriteVerdict) -> Iterator[str]:
     elif kind == "delete":
         what = f'deletes "{visible(rw.old)}" (characters {rw.start} to {rw.end})'
     else:
+        verb, link = _KIND_WORDS.get(kind, ("changes", "into"))
         what = (
-            f'{_KIND_WORDS.get(kind, "changes")} "{visible(rw.old)}" into "{visible(rw.new)}" '
+            f'{verb} "{visible(rw.old)}" {link} "{visible(rw.new)}" '
             f"(characters {rw.start} to {rw.end} of the source)"
         )
     finer = f", a change of {rw.refinement.value} only" if rw.refinement is not None else ""
