@@ -612,7 +612,7 @@ class _FileReader:
                 name=name, source=source, compiled=compiled, kind=kind, origin=self.origin(key)
             )
             self.layer.patterns.append(entry)
-            if self.lint and _matches_empty(compiled):
+            if self.lint and _matches_empty(source, compiled):
                 self.p.warn(
                     self.file,
                     f"pattern '{name}' matches the empty string: it protects nothing visible "
@@ -630,12 +630,14 @@ class _FileReader:
         except (regex.error, OverflowError, RecursionError) as e:
             self.err(key, f"invalid regex: {e}")
             return None
-        patterns_mod = _pattern_checks()
-        if patterns_mod is not None:
-            for risk in patterns_mod.static_risks(source):
+        checks = _pattern_checks()
+        if checks is not None:
+            for risk in checks.static_risks(source):
+                if risk.startswith("not analysed"):
+                    continue  # the structure is unknown, not risky: probing decides (lint)
                 self.err(key, f"regex can backtrack catastrophically: {risk}")
             if self.lint:
-                slow = patterns_mod.probe(compiled, 0.2)
+                slow = checks.probe(compiled)
                 if slow:
                     self.err(key, f"regex is too slow on an adversarial input: {slow}")
         return compiled
@@ -861,22 +863,26 @@ def _toml_error(message: str, text: str) -> tuple[str, int | None]:
     return message, None
 
 
-def _matches_empty(compiled: regex.Pattern[str]) -> bool:
-    for probe in _EMPTY_PROBES:
-        try:
-            for m in compiled.finditer(probe, timeout=0.05):
-                if m.start() == m.end():
-                    return True
-        except TimeoutError:
-            return False
-    return False
+def _matches_empty(source: str, compiled: regex.Pattern[str]) -> bool:
+    checks = _pattern_checks()
+    if checks is not None:
+        return checks.matches_empty(source)
+    try:
+        return any(
+            m.start() == m.end()
+            for probe in _EMPTY_PROBES
+            for m in compiled.finditer(probe, timeout=0.05)
+        )
+    except (TimeoutError, MemoryError, RecursionError):
+        return False
 
 
 class _PatternChecks:
     """The interface of guard.vocab.patterns this loader uses."""
 
     static_risks: Callable[[str], list[str]]
-    probe: Callable[[regex.Pattern[str], float], str | None]
+    probe: Callable[[regex.Pattern[str]], str | None]
+    matches_empty: Callable[[str], bool]
 
 
 def _pattern_checks() -> _PatternChecks | None:
@@ -886,7 +892,7 @@ def _pattern_checks() -> _PatternChecks | None:
         if e.name in {"guard.vocab.patterns", "guard.vocab"}:
             return None
         raise
-    if not hasattr(mod, "static_risks") or not hasattr(mod, "probe"):
+    if not all(hasattr(mod, f) for f in ("static_risks", "probe", "matches_empty")):
         return None
     checks: _PatternChecks = mod
     return checks
@@ -1176,8 +1182,10 @@ def _lint(resolved: ResolvedRuleset, p: _Problems) -> None:
                 e.origin.line,
             )
     blocked = {(b.old_key, b.new_key): b for b in resolved.blocked}
-    exact = {e.key: e for e in resolved.terms if e.case is CasePolicy.EXACT}
-    fold = {e.key: e for e in resolved.terms if e.case is CasePolicy.FOLD}
+    exact: dict[str, TermEntry] = {}
+    fold: dict[str, TermEntry] = {}
+    for e in resolved.terms:
+        (exact if e.case is CasePolicy.EXACT else fold).setdefault(e.key, e)
     for a in resolved.allowed:
         also = blocked.get((a.old_key, a.new_key))
         if also is not None:
@@ -1322,10 +1330,16 @@ def resolve(
                     origin.line,
                     origin.key,
                 )
-    if res.p.errors:
-        return None, res.p.errors, res.p.warnings
-    final = ResolvedRuleset(**{**_fields(resolved), "warnings": tuple(res.p.warnings)})
-    return final, res.p.errors, res.p.warnings
+    errors, warnings = _ordered(res.p.errors), _ordered(res.p.warnings)
+    if errors:
+        return None, errors, warnings
+    final = ResolvedRuleset(**{**_fields(resolved), "warnings": tuple(warnings)})
+    return final, errors, warnings
+
+
+def _ordered(problems: list[Problem]) -> list[Problem]:
+    """By file, then line: a reader fixes a file top to bottom."""
+    return sorted(problems, key=lambda p: (p.file, p.line or 0))
 
 
 def _fields(r: ResolvedRuleset) -> dict[str, Any]:

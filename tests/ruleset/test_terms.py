@@ -1,0 +1,121 @@
+"""The term matcher: whole words, longest first, offsets into the text as given.
+
+Case-folding facts used below come from the Unicode Character Database, CaseFolding.txt
+(full folding, status F): U+00DF ß -> "ss"; U+1E9E ẞ -> "ss"; U+0130 İ -> "i" U+0307;
+U+FB01 ﬁ -> "fi". Canonical equivalence of "é" and "e" + U+0301 is from UAX #15
+(Unicode Normalization Forms). Each expected offset counts characters of the original text.
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from guard.records import Origin
+from guard.ruleset.model import CasePolicy, TermEntry
+from guard.ruleset.terms import TermMatcher
+from guard.text.normalize import normalize_key
+
+
+def entry(term: str, case: CasePolicy = CasePolicy.FOLD, line: int = 1) -> TermEntry:
+    return TermEntry(
+        term=term,
+        key=normalize_key(term, fold=case is CasePolicy.FOLD),
+        kind="term",
+        case=case,
+        origin=Origin(file="terms.txt", line=line),
+    )
+
+
+EXACT = CasePolicy.EXACT
+
+
+def spans(terms: list[TermEntry], text: str) -> list[tuple[int, int, str]]:
+    hits = TermMatcher(terms).find(text)
+    for h in hits:
+        assert 0 <= h.start < h.end <= len(text)
+    return [(h.start, h.end, h.entry.term) for h in hits]
+
+
+@pytest.mark.parametrize(
+    ("terms", "text", "expected"),
+    [
+        # CaseFolding.txt: ß and "SS" both fold to "ss"
+        pytest.param([entry("Straße")], "STRASSE", [(0, 7, "Straße")], id="sharp-s-upper"),
+        pytest.param([entry("STRASSE")], "die Straße 4", [(4, 10, "STRASSE")], id="sharp-s-text"),
+        # CaseFolding.txt: U+1E9E capital sharp s folds to "ss" (1 char -> 2)
+        pytest.param([entry("strasse")], "Die STRAẞE.", [(4, 10, "strasse")], id="capital-sharp-s"),
+        # a term after a character that folds longer keeps its original offsets
+        pytest.param([entry("Quillmate")], "Maß Quillmate", [(4, 13, "Quillmate")], id="after-ss"),
+        # CaseFolding.txt: İ folds to i + U+0307 (1 char -> 2)
+        pytest.param([entry("İstanbul")], "in İSTANBUL now", [(3, 11, "İstanbul")], id="dotted-I"),
+        pytest.param([entry("Quillmate")], "İİ QUILLMATE", [(3, 12, "Quillmate")], id="after-I"),
+        # CaseFolding.txt: U+FB01 ﬁ folds to "fi"
+        pytest.param([entry("file")], "the ﬁle ok", [(4, 7, "file")], id="fi-ligature"),
+        pytest.param([entry("Straße")], "Straßenbahn", [], id="inside-longer-word"),
+        pytest.param([entry("strass")], "Straße", [], id="ends-inside-folded-char"),
+        pytest.param(
+            [entry("bilge pump")],
+            "New Bilge  Pump,\tbilge\u00a0pump; bilge pumps",
+            [(4, 15, "bilge pump"), (17, 27, "bilge pump")],
+            id="multiword-any-space",
+        ),
+        pytest.param(
+            [entry("bilge"), entry("bilge pump"), entry("pump room")],
+            "bilge pump room",
+            [(0, 10, "bilge pump")],
+            id="longest-first",
+        ),
+        pytest.param(
+            [entry("bilge"), entry("bilge pump")],
+            "a bilge pump",
+            [(2, 12, "bilge pump")],
+            id="nested",
+        ),
+        pytest.param([entry("IT", EXACT)], "it IT It", [(3, 5, "IT")], id="exact-case"),
+        # UAX #15: "e" + U+0301 is canonically equivalent to "é"
+        pytest.param([entry("café", EXACT)], "cafe\u0301 noir", [(0, 5, "café")], id="nfd-text"),
+        pytest.param([entry("cafe", EXACT)], "cafe\u0301 noir", [], id="mark-is-part-of-word"),
+        pytest.param([entry("C#", EXACT)], "use C# daily", [(4, 6, "C#")], id="symbol-edge"),
+        pytest.param([entry("XR-220", EXACT)], "XR-220B, XR-220.", [(9, 15, "XR-220")], id="code"),
+    ],
+)
+def test_find(terms: list[TermEntry], text: str, expected: list[tuple[int, int, str]]) -> None:
+    assert spans(terms, text) == expected
+
+
+def test_boundaries_case_takes_the_only_whole_word() -> None:
+    # "pumps" and "pump2" continue the word; "_" is not a letter, digit or mark
+    assert spans([entry("pump")], "pumps pump2 _pump") == [(13, 17, "pump")]
+
+
+def test_hits_map_back_to_the_original_text() -> None:
+    text = "ﬁx the İSTANBUL Straße file"
+    terms = [entry("istanbul"), entry("İstanbul"), entry("strasse"), entry("fix")]
+    got = [text[s:e] for s, e, _ in spans(terms, text)]
+    assert got == ["ﬁx", "İSTANBUL", "Straße"]
+
+
+def test_exact_and_fold_terms_on_the_same_span_keep_the_exact_one() -> None:
+    exact, fold = entry("Kettlewick", EXACT, line=1), entry("kettlewick", line=2)
+    (hit,) = TermMatcher([fold, exact]).find("Kettlewick")
+    assert hit.entry is exact
+
+
+def test_lookup_is_an_exact_key_match() -> None:
+    m = TermMatcher([entry("Straße"), entry("bilge pump"), entry("XR-220", EXACT)])
+    assert m.lookup("STRASSE") is not None
+    assert m.lookup("Bilge   Pump") is not None
+    assert m.lookup("bilge") is None
+    assert m.lookup("XR-220") is not None
+    assert m.lookup("xr-220") is None
+
+
+def test_duplicate_keys_keep_the_first_listing() -> None:
+    first, second = entry("Quillmate", line=1), entry("QUILLMATE", line=9)
+    m = TermMatcher([first, second])
+    assert len(m) == 1 and m.lookup("quillmate") is first
+
+
+def test_no_terms_no_hits() -> None:
+    assert TermMatcher([]).find("anything") == ()
+    assert TermMatcher([]).lookup("anything") is None
