@@ -40,6 +40,7 @@ writing to ``write_drafts``.
 from __future__ import annotations
 
 import enum
+import functools
 import json
 import math
 import os
@@ -196,6 +197,7 @@ _OPENERS = frozenset("\"'“‘«‹([{¿¡*-–—•·#>|")
 _LETTER = regex.compile(r"\p{L}")
 _WHITESPACE = regex.compile(r"\s+")
 _CAPITALISED = frozenset({Shape.TITLE, Shape.INTERNAL_CAP})
+_UPPER_SHAPES = frozenset({Shape.TITLE, Shape.INTERNAL_CAP, Shape.ALLCAPS})
 _NAME_SHARE = 0.8  # of mid-sentence occurrences capitalised, for a word to count as a name
 _HEADING_MIN_WORDS = 3
 _HEADING_SHARE = 0.75
@@ -205,7 +207,7 @@ _HEADING_SHARE = 0.75
 class _Tally:
     """What is known of one candidate key while the corpus is read."""
 
-    literal_kind: Kind | None  # set for codes and identifiers, None for words
+    literal_kind: Kind | None  # set for literal tokens and two-word names, None for words
     forms: Counter[str] = field(default_factory=Counter)
     count: int = 0
     documents: int = 0
@@ -218,19 +220,20 @@ class _Tally:
     contexts: list[tuple[int, str]] = field(default_factory=list)
     spare_context: str | None = None
 
-    def add(self, form: str, doc: int, context: str) -> None:
+    def add(self, form: str, doc: int, context: Callable[[], str]) -> None:
+        """Count one occurrence; ``context`` is called only when a context is still wanted."""
         self.count += 1
         self.forms[form] += 1
         if doc != self.last_doc:
             self.documents += 1
             self.last_doc = doc
         if not self.contexts:
-            self.contexts.append((doc, context))
+            self.contexts.append((doc, context()))
         elif len(self.contexts) == 1:
             if self.contexts[0][0] != doc:
-                self.contexts.append((doc, context))
+                self.contexts.append((doc, context()))
             elif self.spare_context is None:
-                self.spare_context = context
+                self.spare_context = context()
 
     def context_tuple(self) -> tuple[str, ...]:
         found = [text for _, text in self.contexts]
@@ -280,8 +283,10 @@ def _no_evidence(tokens: Sequence[Token], shapes: dict[int, Shape]) -> set[int]:
     for line in _lines(tokens):
         words = [i for i in line if tokens[i].kind is TokenKind.WORD and i in shapes]
         if len(words) >= _HEADING_MIN_WORDS:
-            capitalised = sum(1 for i in words if shapes[i] is not Shape.LOWER)
-            if capitalised >= _HEADING_SHARE * len(words):
+            # Short words stay lowercase in Title Case headings: "Guide to the Dock".
+            long_words = [i for i in words if _letters(tokens[i].text) > 3] or words
+            capitalised = sum(1 for i in long_words if shapes[i] in _UPPER_SHAPES)
+            if capitalised >= _HEADING_SHARE * len(long_words):
                 out.update(words)
                 continue
         run: list[int] = []
@@ -313,10 +318,20 @@ class _Harvester:
         self.o = options
         self.tallies: dict[tuple[str, str], _Tally] = {}
         self.total = 0  # word and literal tokens: the corpus size for G²
-        self.docs = 0
+        self._zipf: dict[str, float] = {}
+        self._shape: dict[str, Shape] = {}
 
     def zipf(self, text: str) -> float:
-        return float(wordfreq.zipf_frequency(text, self.o.lang))
+        got = self._zipf.get(text)
+        if got is None:
+            got = self._zipf[text] = float(wordfreq.zipf_frequency(text, self.o.lang))
+        return got
+
+    def shape(self, text: str) -> Shape:
+        got = self._shape.get(text)
+        if got is None:
+            got = self._shape[text] = shape_of(text)
+        return got
 
     def tally(self, key: tuple[str, str], literal: Kind | None) -> _Tally:
         got = self.tallies.get(key)
@@ -327,7 +342,7 @@ class _Harvester:
     def read(self, doc: int, text: str) -> None:
         tokens = tokenize(text)
         shapes = {
-            i: shape_of(t.text)
+            i: self.shape(t.text)
             for i, t in enumerate(tokens)
             if t.kind in (TokenKind.WORD, TokenKind.IDENTIFIER)
         }
@@ -340,7 +355,7 @@ class _Harvester:
                     previous = None
                 continue
             self.total += 1
-            context = _context(text, tok.start, tok.end, width)
+            context = functools.partial(_context, text, tok.start, tok.end, width)
             literal = self._literal_kind(tok, shapes.get(i))
             if literal is not None:
                 self.tally(("literal", tok.text), literal).add(tok.text, doc, context)
@@ -400,7 +415,7 @@ class _Harvester:
         if a_common and (_sentence_initial(tokens, first) or self.zipf(b.text) > self.o.max_zipf):
             return  # "The Quillmate", "Getting Started"
         phrase = f"{a.text} {b.text}"
-        context = _context(text, a.start, b.end, self.o.context_chars)
+        context = functools.partial(_context, text, a.start, b.end, self.o.context_chars)
         self.tally(("pair", phrase), Kind.NAME).add(phrase, doc, context)
 
     def candidates(
@@ -410,7 +425,7 @@ class _Harvester:
         for (space, _), t in self.tallies.items():
             if t.count < min_count:
                 continue
-            kind, term = self._classify(space, t)
+            kind, term = self._classify(t)
             zipf = self.zipf(term)
             if space != "literal" and zipf > self.o.max_zipf:
                 continue
@@ -439,7 +454,7 @@ class _Harvester:
         return out
 
     @staticmethod
-    def _classify(space: str, t: _Tally) -> tuple[Kind, str]:
+    def _classify(t: _Tally) -> tuple[Kind, str]:
         if t.literal_kind is not None:
             return t.literal_kind, t.forms.most_common(1)[0][0]
         forms = t.forms.most_common()
@@ -524,31 +539,41 @@ def rank_attacked(
 ) -> list[Candidate]:
     """Candidates a speller changed in ``pairs`` (``(source, proposal)``), most at risk first.
 
-    A candidate is attacked once for each rewrite (see :func:`guard.align.align`) whose
-    source span overlaps one of its occurrences in the source (case-insensitive, whole
-    tokens). Its score is ``attacks * ln(count)``: a term the speller keeps changing and
-    the corpus uses often is the one to protect first, while a word seen once in the
-    corpus scores 0 (a typo there is more likely than a term). Source tokens that are not
-    among ``candidates`` (common words, or below the count threshold) are left out.
+    The source is tokenized as harvesting tokenizes a corpus; a candidate occurs where
+    its words are whole tokens in a row, separated by whitespace only, compared with case
+    folded. It is attacked once for each rewrite (see :func:`guard.align.align`) that
+    changes text inside one of its occurrences. Its score is ``attacks * ln(count)``: a
+    term the speller keeps changing and the corpus uses often is the one to protect
+    first, while a word seen once in the corpus scores 0 (a typo there is more likely
+    than a term). Source tokens that are not among ``candidates`` (common words, or below
+    the count threshold) are left out.
 
     >>> corpus = [Candidate(term="QSP", kind=Kind.ACRONYM, count=9, documents=3,
     ...                     zipf=1.2, g2=80.0, contexts=(), score=80.0)]
     >>> [(c.term, c.attacks) for c in rank_attacked([("QSP ok", "QSO ok")], corpus)]
     [('QSP', 1)]
     """
-    finders = [(c, _finder(c.term)) for c in candidates]
+    index: dict[tuple[str, ...], int] = {}
+    for i, c in enumerate(candidates):
+        index.setdefault(tuple(w.casefold() for w in c.term.split()), i)
+    longest = max((len(key) for key in index), default=0)
     attacks: Counter[int] = Counter()
     for source, proposal in pairs:
-        rewrites = align(source, proposal)
-        if not rewrites:
+        spans = [(r.start, r.end) for r in align(source, proposal)]
+        if not spans:
             continue
-        spans = [(r.start, r.end) for r in rewrites]
-        folded = source.casefold()
-        for index, (cand, finder) in enumerate(finders):
-            if not all(word.casefold() in folded for word in cand.term.split()):
-                continue  # a cheap test first: the term cannot be in this source
-            for m in finder.finditer(source):
-                attacks[index] += sum(1 for s, e in spans if _touches(s, e, m.start(), m.end()))
+        words = [t for t in tokenize(source) if t.kind is not TokenKind.SPACE]
+        for first in range(len(words)):
+            key: tuple[str, ...] = ()
+            for last in range(first, min(first + longest, len(words))):
+                if last > first and not source[words[last - 1].end : words[last].start].isspace():
+                    break
+                key = (*key, words[last].text.casefold())
+                found = index.get(key)
+                if found is None:
+                    continue
+                lo, hi = words[first].start, words[last].end
+                attacks[found] += sum(1 for s, e in spans if _touches(s, e, lo, hi))
     ranked = [
         replace(c, attacks=attacks[i], score=attacks[i] * math.log(c.count))
         for i, c in enumerate(candidates)
@@ -556,14 +581,6 @@ def rank_attacked(
     ]
     ranked.sort(key=lambda c: (-c.score, -c.attacks, -c.count, c.term))
     return ranked
-
-
-def _finder(term: str) -> regex.Pattern[str]:
-    words = (regex.escape(w) for w in term.split())
-    return regex.compile(
-        r"(?<![\p{L}\p{M}\p{N}])" + r"\s+".join(words) + r"(?![\p{L}\p{M}\p{N}])",
-        regex.IGNORECASE | regex.FULLCASE,
-    )
 
 
 def _touches(start: int, end: int, lo: int, hi: int) -> bool:

@@ -216,6 +216,29 @@ def test_insertion_at_a_term_edge_is_no_attack() -> None:
     assert rank_attacked([("use QSP now", "use the QSP now")], corpus) == []
 
 
+def test_attacks_match_whole_tokens() -> None:
+    corpus = [
+        _made("qm", Kind.TERM, count=4, g2=20.0),
+        _made("QM-4410", Kind.CODE, count=3, g2=30.0),
+        _made("Orla Brennick", Kind.NAME, count=2, g2=25.0),
+    ]
+    pairs = [
+        ("Fit the QM-4410 now.", "Fit the QM-4411 now."),
+        # The name across a line break is still the name; a comma between is not.
+        ("Ask Orla\nBrennick.", "Ask Orla\nBrannick."),
+        ("Ask Orla, Brennick said.", "Ask Orla, Brannick said."),
+    ]
+    ranked = rank_attacked(pairs, corpus)
+    assert [(c.term, c.attacks) for c in ranked] == [("QM-4410", 1), ("Orla Brennick", 1)]
+
+
+def test_title_case_headings_with_short_words() -> None:
+    text = "Guide to the Quillmate Dock\n\nThe dock hums when the quillmate syncs.\n"
+    found = {c.term for c in harvest([("a", text), ("b", text)], lang="en")}
+    assert "Quillmate Dock" not in found
+    assert "quillmate" in found
+
+
 # --- draft lists -----------------------------------------------------------------------
 
 
