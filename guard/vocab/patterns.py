@@ -651,7 +651,7 @@ def matches_empty(pattern: str) -> bool:
     r"""Whether ``pattern`` can match the empty string (somewhere, with its anchors ignored).
 
     Read from the pattern's structure; a pattern this module cannot parse is tried on a
-    few short texts instead.
+    few short texts instead. A pattern that does not compile raises ``regex.error``.
 
     >>> matches_empty(r"\d*"), matches_empty(r"\d+"), matches_empty(r"\b")
     (True, False, True)
