@@ -7,6 +7,10 @@ index, which needs the network and minutes; so the test copies each hook of our 
 into a ``repo: local`` hook with ``language: system``, keeping its id, entry, file pattern and
 ``pass_filenames``, and puts this environment's ``guard`` on PATH. What runs is exactly our
 entry through pre-commit's own file selection.
+
+The full path, ``repo:`` this checkout at its HEAD commit with pre-commit installing it,
+runs when GUARD_TEST_PRECOMMIT_INSTALL=1 is set (it needs the package index and about a
+minute and a half).
 """
 
 from __future__ import annotations
@@ -52,6 +56,15 @@ def _local_config(hooks: list[dict[str, Any]]) -> str:
     return yaml.safe_dump({"repos": [{"repo": "local", "hooks": local}]}, sort_keys=False)
 
 
+def _remote_config() -> str:
+    head = subprocess.run(
+        ["git", "rev-parse", "HEAD"], cwd=ROOT, check=True, capture_output=True, text=True
+    ).stdout.strip()
+    hooks = [{"id": h["id"]} for h in _hooks()]
+    repos = [{"repo": str(ROOT), "rev": head, "hooks": hooks}]
+    return yaml.safe_dump({"repos": repos}, sort_keys=False)
+
+
 def _run_precommit(repo: Path, home: Path) -> subprocess.CompletedProcess[str]:
     env = dict(os.environ)
     env["PRE_COMMIT_HOME"] = str(home)
@@ -69,10 +82,11 @@ def _run_precommit(repo: Path, home: Path) -> subprocess.CompletedProcess[str]:
     )
 
 
-def _ruleset_repo(tmp_path: Path, fixture: str) -> Path:
+def _ruleset_repo(tmp_path: Path, fixture: str, config: str | None = None) -> Path:
     repo = tmp_path / "rules-repo"
     shutil.copytree(FIXTURES / fixture, repo / "rulesets" / "tollmere")
-    (repo / ".pre-commit-config.yaml").write_text(_local_config(_hooks()), encoding="utf-8")
+    text = config if config is not None else _local_config(_hooks())
+    (repo / ".pre-commit-config.yaml").write_text(text, encoding="utf-8")
     _git(repo, "init", "-q")
     _git(repo, "add", ".")
     _git(repo, "commit", "-q", "-m", "ruleset")
@@ -111,3 +125,14 @@ def test_lint_hook_fails_on_a_broken_ruleset_and_names_the_line(tmp_path: Path) 
     )
     assert expected in done.stdout
     assert "1 error, 0 warnings in 1 file (1 ruleset checked)" in done.stdout
+
+
+@pytest.mark.skipif(
+    os.environ.get("GUARD_TEST_PRECOMMIT_INSTALL") != "1",
+    reason="installs this project from its HEAD commit with pre-commit; set "
+    "GUARD_TEST_PRECOMMIT_INSTALL=1 (needs the package index)",
+)
+def test_hooks_installed_by_precommit_from_this_repository(tmp_path: Path) -> None:
+    repo = _ruleset_repo(tmp_path, "good", config=_remote_config())
+    done = _run_precommit(repo, tmp_path / "pre-commit-home")
+    assert done.returncode == 0, done.stdout + done.stderr
