@@ -17,7 +17,7 @@ from pathlib import Path
 from guard.errors import GuardError
 from guard.records import Finding, Origin, Report, RewriteVerdict, Verdict
 from guard.ruleset.model import CompiledRuleset, Example
-from guard.vocab.lint import shorten_path
+from guard.vocab.lint import plural, shorten_path
 
 Checker = Callable[[Example], Report]
 """Checks one example's pair; the default runs guard.api.Guard over the ruleset."""
@@ -131,9 +131,15 @@ def format_outcome(outcome: Outcome, *, relative_to: Path | None = None) -> list
     if outcome.error is not None:
         lines.append(f"      check failed: {outcome.error}")
         return lines
-    lines.append(f"      pair verdict: expected {ex.expect}, got {outcome.actual_pair}")
+    if outcome.actual_pair == ex.expect:
+        lines.append(f"      pair verdict: {ex.expect}, as expected")
+    else:
+        lines.append(f"      pair verdict: expected {ex.expect}, got {outcome.actual_pair}")
     report = outcome.report
     assert report is not None
+    if ex.rewrites is not None and len(ex.rewrites) != len(report.rewrites):
+        want, got = plural(len(ex.rewrites), "rewrite"), len(report.rewrites)
+        lines.append(f"      rewrites: expected {want}, got {got}")
     if not report.rewrites:
         lines.append("      no rewrites: source and proposal align without a change")
     for i, rv in enumerate(report.rewrites):

@@ -86,6 +86,24 @@ def test_a_failing_example_shows_expected_actual_and_why(failing: Path) -> None:
     ]
 
 
+def test_a_wrong_number_of_rewrites_fails_and_says_so(tmp_path: Path) -> None:
+    folder = tmp_path / "counts"
+    shutil.copytree(GOOD, folder)
+    toml = folder / "ruleset.toml"
+    extra = WRONG_EXAMPLE.replace('expect = "accept"', 'expect = "veto"').replace(
+        'rewrites = ["accept", "accept"]', 'rewrites = ["veto", "accept", "accept"]'
+    )
+    toml.write_text(toml.read_text(encoding="utf-8") + extra, encoding="utf-8")
+    code, out, _ = _invoke("--quiet", str(toml))
+    assert code == 1
+    lines = out.splitlines()
+    assert lines[2:4] == [
+        "        pair verdict: veto, as expected",
+        "        rewrites: expected 3 rewrites, got 2",
+    ]
+    assert "        -rewrite 3 (no such rewrite): accept" in lines
+
+
 def test_quiet_shows_failures_only(failing: Path) -> None:
     code, out, _ = _invoke("--quiet", str(failing))
     assert code == 1
