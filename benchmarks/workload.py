@@ -191,6 +191,11 @@ def make_pairs(
         if terms and r() < 0.33:
             at = int(r() * n)
             term = _pick(rng, terms)
+            for _ in range(min(term.count(" "), n + term.count(" ") - 8)):  # stay at 8 words
+                drop = n - 1 if at != n - 1 else 0
+                del toks[drop], src[drop], prop[drop]
+                n -= 1
+                at -= drop < at
             src[at] = prop[at] = term
             if r() < 0.5:
                 touched = True
