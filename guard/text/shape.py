@@ -89,11 +89,71 @@ def has_digit(text: str) -> bool:
 # --- scripts ------------------------------------------------------------------------
 
 
+# Long script names of more than one word, as PropertyValueAliases.txt spells them. The
+# regex tables keep names without underscores (OLDITALIC), so the word breaks come from
+# here; a script missing from this list keeps its one-word capitalised form.
+_MULTIWORD = [
+    "Anatolian_Hieroglyphs",
+    "Bassa_Vah",
+    "Beria_Erfe",
+    "Canadian_Aboriginal",
+    "Caucasian_Albanian",
+    "Cypro_Minoan",
+    "Dives_Akuru",
+    "Egyptian_Hieroglyphs",
+    "Gunjala_Gondi",
+    "Gurung_Khema",
+    "Hanifi_Rohingya",
+    "Imperial_Aramaic",
+    "Inscriptional_Pahlavi",
+    "Inscriptional_Parthian",
+    "Katakana_Or_Hiragana",
+    "Kayah_Li",
+    "Khitan_Small_Script",
+    "Kirat_Rai",
+    "Linear_A",
+    "Linear_B",
+    "Masaram_Gondi",
+    "Meetei_Mayek",
+    "Mende_Kikakui",
+    "Meroitic_Cursive",
+    "Meroitic_Hieroglyphs",
+    "Nag_Mundari",
+    "New_Tai_Lue",
+    "Nyiakeng_Puachue_Hmong",
+    "Ol_Chiki",
+    "Ol_Onal",
+    "Old_Hungarian",
+    "Old_Italic",
+    "Old_North_Arabian",
+    "Old_Permic",
+    "Old_Persian",
+    "Old_Sogdian",
+    "Old_South_Arabian",
+    "Old_Turkic",
+    "Old_Uyghur",
+    "Pahawh_Hmong",
+    "Pau_Cin_Hau",
+    "Phags_Pa",
+    "Psalter_Pahlavi",
+    "SignWriting",
+    "Sora_Sompeng",
+    "Syloti_Nagri",
+    "Tai_Le",
+    "Tai_Tham",
+    "Tai_Viet",
+    "Tai_Yo",
+    "Tolong_Siki",
+    "Tulu_Tigalari",
+    "Warang_Citi",
+    "Zanabazar_Square",
+]
+_SPELLING = {name.replace("_", "").upper(): name for name in _MULTIWORD}
+
+
 def _canonical_name(upper_name: str) -> str:
-    special = {"SIGNWRITING": "SignWriting"}
-    if upper_name in special:
-        return special[upper_name]
-    return "_".join(part.capitalize() for part in upper_name.split("_"))
+    key = upper_name.replace("_", "")
+    return _SPELLING.get(key, key.capitalize())
 
 
 @functools.cache

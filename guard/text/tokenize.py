@@ -34,8 +34,6 @@ flags stay with their base.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 import regex
 
 from guard.records import Token, TokenKind
@@ -56,7 +54,9 @@ _SEG = r"[\w\-+~%$]+(?:\.[\w\-+~%$]+)*"  # a path segment: dots only inside
 _TAIL_STOP = r"""[^\s<>"'`.,;:!?)\]}]"""  # what a URL may end with
 
 _PATTERN = rf"""
-  (?P<url>(?:[A-Za-z][A-Za-z0-9+.\-]*://|www\.)[^\s<>"'`]*{_TAIL_STOP}{_END})
+  (?P<space>(?>\r\n|\s)+{_END})
+| (?P<plain>[[\p{{L}}\p{{M}}]--[{_NOSPACE}]]++(?![\w\-‐.'’·@/:\\(%‰]){_END})
+| (?P<url>(?:[A-Za-z][A-Za-z0-9+.\-]*://|www\.)[^\s<>"'`]*{_TAIL_STOP}{_END})
 | (?P<email>(?<![\w.+\-])[\w+\-]+(?:\.[\w+\-]+)*@[\w\-]+(?:\.[\w\-]+)+{_END})
 | (?P<path>
       (?<![\w/\\])[A-Za-z]:\\(?:{_SEG}\\?)*(?<!\\){_END}
@@ -78,7 +78,6 @@ _PATTERN = rf"""
       (?:(?:(?<=\d)[.,](?=\d)|(?<=\p{{L}}\p{{M}}*)['’·](?=\p{{L}})|[\-‐.](?={_W})){_W}+)*
       (?:\(\)|(?<=\d)(?:%|‰))?{_END}
   )
-| (?P<space>(?>\r\n|\s)+{_END})
 | (?P<other>\X)
 """
 
@@ -126,28 +125,43 @@ def _chunk_kind(chunk: str) -> TokenKind:
     return TokenKind.WORD
 
 
-def _kind(group: str, text: str) -> TokenKind:
-    if group == "chunk":
-        return _chunk_kind(text)
-    if group == "other":
-        return TokenKind.PUNCT if _PUNCT.match(text) else TokenKind.SYMBOL
-    return _GROUP_KIND[group]
+def _plain_kind(word: str) -> TokenKind:
+    """Letters and marks followed by nothing that could make them a literal."""
+    if word[1:].islower() or not word.isascii() or _CAMEL.search(word) is None:
+        return TokenKind.WORD
+    return TokenKind.IDENTIFIER
 
 
-def spans(text: str) -> Iterator[tuple[int, int, TokenKind]]:
+def _other_kind(cluster: str) -> TokenKind:
+    return TokenKind.PUNCT if _PUNCT.match(cluster) else TokenKind.SYMBOL
+
+
+_CLASSIFY = {"plain": _plain_kind, "chunk": _chunk_kind, "other": _other_kind}
+
+
+def spans(text: str) -> list[tuple[int, int, TokenKind]]:
     """``(start, end, kind)`` of each token, without building :class:`Token` records.
 
     Alignment uses this to avoid making records for the unchanged part of a text.
 
-    >>> list(spans("H2O at 3.5mm"))  # doctest: +NORMALIZE_WHITESPACE
+    >>> spans("H2O at 3.5mm")  # doctest: +NORMALIZE_WHITESPACE
     [(0, 3, <TokenKind.CODE: 'code'>), (3, 4, <TokenKind.SPACE: 'space'>),
      (4, 6, <TokenKind.WORD: 'word'>), (6, 7, <TokenKind.SPACE: 'space'>),
      (7, 12, <TokenKind.NUMBER: 'number'>)]
     """
+    out: list[tuple[int, int, TokenKind]] = []
+    start = 0
+    fixed, classify = _GROUP_KIND, _CLASSIFY
     for m in _TOKEN.finditer(text):
+        # The tokens tile the text, so each starts where the one before ended.
+        end = m.end()
         group = m.lastgroup
-        assert group is not None  # every alternative is a named group
-        yield m.start(), m.end(), _kind(group, m.group())
+        kind = fixed.get(group)  # type: ignore[arg-type]
+        if kind is None:
+            kind = classify[group](text[start:end])  # type: ignore[index]
+        out.append((start, end, kind))
+        start = end
+    return out
 
 
 def tokenize(text: str) -> tuple[Token, ...]:

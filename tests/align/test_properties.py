@@ -1,0 +1,154 @@
+"""Alignment invariants over arbitrary Unicode (DESIGN "Alignment"), as hypothesis properties.
+
+* applying no rewrite gives the source back; applying all gives the proposal;
+* every rewrite names the text at its span, in both texts; rewrites are sorted and
+  do not overlap;
+* nothing raises, whatever the input.
+
+Proposals are drawn both independently and as random edits of the source, since a
+speller's proposal is mostly the source with a few changes.
+"""
+
+from __future__ import annotations
+
+import random
+
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from guard.align import align, apply
+from guard.records import RewriteKind
+
+PIECES = [
+    "pump",
+    "Valve",
+    "the",
+    "e\u0301",
+    "cafe\u0301",
+    "\U0001f469\u200d\U0001f4bb",
+    "\U0001f44d\U0001f3fd",
+    "\U0001f1eb\U0001f1f7",
+    "שלום",
+    "עולם",
+    "مرحبا",
+    "東京",
+    "我喜欢",
+    "タワー",
+    "สวัสดี",
+    "ครับ",
+    "XR-220",
+    "3.5mm",
+    "1,000",
+    "l'",
+    "don't",
+    "well-known",
+    "os.path",
+    "./x.sh",
+    "a@b.org",
+    "https://x.org/a",
+    "-",
+    ".",
+    ",",
+    "'",
+    "/",
+    "#",
+    "@",
+    "\u200b",
+    "\u202e",
+    "\u00ad",
+    "\u0301",
+    "\u0600",
+    " ",
+    " ",
+    " ",
+    "  ",
+    "\t",
+    "\n",
+    "\r\n",
+    "\u00a0",
+    "\u3000",
+]
+SMALL_EDITS = [" ", "-", "e", "\u0301", "\u200d", "X", "字", "ั", "'", "s", "1", ""]
+
+
+def _char(rng: random.Random) -> str:
+    """Any code point but a lone surrogate, leaning to the planes text lives in."""
+    cp = rng.choice([rng.randrange(0x80), rng.randrange(0x3000), rng.randrange(0x110000)])
+    return chr(cp) if not 0xD800 <= cp < 0xE000 else "?"
+
+
+def _text(rng: random.Random) -> str:
+    parts = []
+    for _ in range(rng.randrange(15)):
+        parts.append(rng.choice(PIECES) if rng.random() < 0.7 else _char(rng))
+    return "".join(parts)
+
+
+def _edit(rng: random.Random, source: str) -> str:
+    """The source with a few character edits: typos, splits, joins, case, new pieces."""
+    text = list(source)
+    for _ in range(rng.randrange(5)):
+        at = rng.randrange(len(text) + 1)
+        op = rng.choice(["insert", "delete", "replace", "swap", "case", "piece"])
+        if op == "insert":
+            text.insert(at, rng.choice(SMALL_EDITS) if rng.random() < 0.7 else _char(rng))
+        elif op == "piece":
+            text[at:at] = list(rng.choice(PIECES))
+        elif at < len(text):
+            if op == "delete":
+                del text[at]
+            elif op == "replace":
+                text[at] = rng.choice(SMALL_EDITS) or _char(rng)
+            elif op == "case":
+                text[at] = text[at].swapcase()
+            elif op == "swap" and at + 1 < len(text):
+                text[at], text[at + 1] = text[at + 1], text[at]
+    return "".join(text)
+
+
+@st.composite
+def pairs(draw: st.DrawFn) -> tuple[str, str]:
+    """Half hypothesis' own text (which it shrinks well), half built from pieces by a
+    seeded generator (cheap to draw, so 10,000 examples stay quick)."""
+    if draw(st.booleans()):
+        source = draw(st.text())
+        proposal = draw(st.text() | st.just(source))
+        return source, proposal
+    rng = draw(st.randoms(use_true_random=False))
+    source = _text(rng)
+    return source, (_edit(rng, source) if rng.random() < 0.7 else _text(rng))
+
+
+@settings(max_examples=10_000, deadline=None)
+@given(pairs())
+def test_alignment_round_trips(pair: tuple[str, str]) -> None:
+    source, proposal = pair
+    rewrites = align(source, proposal)
+    assert apply(source, []) == source
+    assert apply(source, rewrites) == proposal
+    at = 0
+    for i, r in enumerate(rewrites):
+        assert r.index == i
+        assert r.start >= at  # sorted, not overlapping
+        at = r.end
+        assert source[r.start : r.end] == r.old
+        assert proposal[r.new_start : r.new_end] == r.new
+        assert r.old != r.new
+        assert (r.kind is RewriteKind.INSERT) == (r.old == "")
+        assert (r.kind is RewriteKind.DELETE) == (r.new == "")
+        assert "".join(t.text for t in r.old_tokens) == r.old
+        assert "".join(t.text for t in r.new_tokens) == r.new
+    if source == proposal:
+        assert rewrites == ()
+
+
+@settings(max_examples=1000, deadline=None)
+@given(pairs(), st.data())
+def test_any_subset_applies(pair: tuple[str, str], data: st.DataObject) -> None:
+    source, proposal = pair
+    rewrites = align(source, proposal)
+    chosen = [r for r in rewrites if data.draw(st.booleans())]
+    result = apply(source, chosen)
+    # what is not chosen stays as in the source: undoing the chosen ones gives it back
+    undo = align(result, source)
+    assert apply(result, undo) == source
