@@ -75,13 +75,14 @@ def rules() -> None:
 
 
 @rules.command("lint")
-@click.argument("paths", nargs=-1)
+@click.argument("paths", nargs=-1, metavar="[PATH|NAME]...")
 @click.option("--strict", is_flag=True, help="Warnings fail too (exit 1).")
 @click.pass_context
 def lint_command(ctx: click.Context, paths: tuple[str, ...], strict: bool) -> None:
-    """Report every error and warning of the rulesets at PATH..., sorted by file and line.
+    """Report every error and warning of the rulesets named, sorted by file and line.
 
-    Exit 2 on any error; with --strict, exit 1 on warnings alone; else 0.
+    With no PATH, every ruleset.toml below the current folder. Exit 2 on any error; with
+    --strict, exit 1 on warnings alone; else 0.
     """
     result = linting.lint(_targets(paths), relative_to=_display_base(paths))
     for line in linting.format_result(result):
@@ -92,11 +93,15 @@ def lint_command(ctx: click.Context, paths: tuple[str, ...], strict: bool) -> No
 
 
 @rules.command("test")
-@click.argument("paths", nargs=-1)
+@click.argument("paths", nargs=-1, metavar="[PATH|NAME]...")
 @click.option("-q", "--quiet", is_flag=True, help="Show failures only.")
 @click.pass_context
 def examples_command(ctx: click.Context, paths: tuple[str, ...], quiet: bool) -> None:
-    """Run the examples each ruleset at PATH... carries; exit 1 if any fails."""
+    """Run the examples each ruleset named carries, through the guard engine.
+
+    With no PATH, every ruleset.toml below the current folder. Exit 1 if an example fails,
+    2 if a ruleset cannot be loaded, else 0.
+    """
     outcomes: list[selftest.Outcome] = []
     broken = 0
     base = _display_base(paths)
@@ -125,11 +130,19 @@ def examples_command(ctx: click.Context, paths: tuple[str, ...], quiet: bool) ->
 @rules.command("show")
 @click.argument("ref", metavar="NAME|PATH")
 @click.option(
-    "--format", "fmt", type=click.Choice(sorted(RENDERERS)), default="text", show_default=True
+    "--format",
+    "fmt",
+    type=click.Choice(sorted(RENDERERS)),
+    default="text",
+    show_default=True,
+    help="text for people, json for scripts.",
 )
 @click.pass_context
 def show_command(ctx: click.Context, ref: str, fmt: str) -> None:
-    """Show the ruleset NAME|PATH as resolved after extends, with where each setting came from."""
+    """Show the ruleset NAME|PATH as resolved after extends, with where each setting came from.
+
+    Exit 2 when the ruleset cannot be loaded.
+    """
     try:
         ruleset = load_ruleset(_ref(ref))
     except RulesetError as e:
@@ -175,6 +188,14 @@ def _load_version(which: str, ref: str, workdir: Path) -> CompiledRuleset | None
 )
 @click.option("--input-format", type=click.Choice(FORMATS), default=None, help="Format of --pairs.")
 @click.option("--lang", default=None, help="Language of pairs that carry no 'lang' field.")
+@click.option(
+    "--format",
+    "fmt",
+    type=click.Choice(sorted(diffing.RENDERERS)),
+    default="text",
+    show_default=True,
+    help="text for people, json for scripts.",
+)
 @click.pass_context
 def diff_command(
     ctx: click.Context,
@@ -183,11 +204,13 @@ def diff_command(
     pairs_path: str,
     input_format: str | None,
     lang: str | None,
+    fmt: str,
 ) -> None:
     """Show which verdicts change on a batch between ruleset OLD and ruleset NEW.
 
     OLD and NEW are paths, bundled names, or REV:PATH for the ruleset at PATH as it was at
-    git revision REV. Exit 1 when any rewrite goes from veto to accept.
+    git revision REV. Exit 1 when any rewrite goes from veto to accept; 2 when a version
+    cannot be loaded or a record cannot be read (the rest of the batch is still compared).
     """
     try:
         records = read_records([pairs_path], input_format=input_format)
@@ -202,8 +225,7 @@ def diff_command(
     if before is None or after is None:
         ctx.exit(EXIT_ERROR)
     result = diffing.diff_batch(records, _checker(before, lang), _checker(after, lang))
-    for line in diffing.format_diff(result, old_name=old, new_name=new):
-        click.echo(line)
+    click.echo(diffing.RENDERERS[fmt](result, old_name=old, new_name=new))
     if result.errors:
         ctx.exit(EXIT_ERROR)
     ctx.exit(EXIT_FAIL if result.loosened else EXIT_OK)

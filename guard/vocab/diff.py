@@ -16,6 +16,7 @@ prints or exits.
 from __future__ import annotations
 
 import io
+import json
 import os
 import subprocess
 import tarfile
@@ -23,6 +24,7 @@ from collections import Counter
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 from pathlib import Path, PurePosixPath
+from typing import Protocol
 
 from guard.errors import GuardError
 from guard.io.read import ErrorRecord, InputRecord, Record
@@ -269,3 +271,46 @@ def format_diff(result: DiffResult, *, old_name: str, new_name: str) -> list[str
     if result.loosened:
         lines.append(f"{plural(result.loosened, 'rewrite')} went from veto to accept")
     return lines
+
+
+def diff_as_json(result: DiffResult, *, old_name: str, new_name: str) -> str:
+    """The same content as format_diff, as one JSON object for scripts and CI annotations."""
+    data = {
+        "old": old_name,
+        "new": new_name,
+        "pairs": result.pairs,
+        "rewrites": result.rewrites,
+        "veto_to_accept": result.loosened,
+        "transitions": [
+            {"before": a, "after": b, "rewrites": n}
+            for (a, b), n in sorted(result.transitions.items())
+        ],
+        "changes": [
+            {
+                "file": c.record.file,
+                "line": c.record.line,
+                "id": c.record.id,
+                "old": c.old,
+                "new": c.new,
+                "before": _v(c.before),
+                "after": _v(c.after),
+                "rules_before": list(c.rules_before),
+                "rules_after": list(c.rules_after),
+            }
+            for c in result.changes
+        ],
+        "errors": [{"file": e.file, "line": e.line, "reason": e.reason} for e in result.errors],
+    }
+    return json.dumps(data, ensure_ascii=False, indent=2)
+
+
+def format_text(result: DiffResult, *, old_name: str, new_name: str) -> str:
+    return "\n".join(format_diff(result, old_name=old_name, new_name=new_name))
+
+
+class Renderer(Protocol):
+    def __call__(self, result: DiffResult, *, old_name: str, new_name: str) -> str: ...
+
+
+RENDERERS: Mapping[str, Renderer] = {"text": format_text, "json": diff_as_json}
+"""Output formats of `guard rules diff`, by name."""

@@ -64,6 +64,34 @@ def test_a_removed_term_moves_veto_to_accept_and_fails(tmp_path: Path) -> None:
     ]
 
 
+def test_json_carries_the_same_result(tmp_path: Path) -> None:
+    old, new = _versions(tmp_path)
+    pairs = _pairs_file(tmp_path)
+    args = [str(old), str(new), "--pairs", str(pairs), "--lang", "en", "--format", "json"]
+    code, out, _ = _invoke(*args)
+    assert code == 1
+    data = json.loads("\n".join(out))
+    assert (data["pairs"], data["rewrites"], data["veto_to_accept"]) == (2, 2, 1)
+    assert data["transitions"] == [
+        {"before": "accept", "after": "accept", "rewrites": 1},
+        {"before": "veto", "after": "accept", "rewrites": 1},
+    ]
+    assert data["changes"] == [
+        {
+            "file": str(pairs),
+            "line": 1,
+            "id": "n1",
+            "old": "quillon",
+            "new": "quilon",
+            "before": "veto",
+            "after": "accept",
+            "rules_before": ["protected-term"],
+            "rules_after": [],
+        }
+    ]
+    assert data["errors"] == []
+
+
 def test_the_other_way_round_tightens_and_passes(tmp_path: Path) -> None:
     old, new = _versions(tmp_path)
     pairs = _pairs_file(tmp_path)
