@@ -89,6 +89,8 @@ def command(
                 reporter.record(outcome)
                 summary.written += 1
             reporter.finish(summary)
+    except BrokenPipeError:
+        raise common.output_closed() from None
     except KeyboardInterrupt:
         progress.close()
         raise common.interrupted(summary, "check", output) from None

@@ -16,6 +16,7 @@ as one, later ones over earlier ones.
 
 from __future__ import annotations
 
+import io
 import os
 import sys
 import time
@@ -224,6 +225,21 @@ def tally(
         if progress is not None:
             progress.update(summary)
         yield outcome
+
+
+def output_closed() -> click.exceptions.Exit:
+    """Standard output was closed early (``guard filter | head``): stop quietly, exit 1.
+
+    Standard output is pointed at /dev/null first, so that the interpreter's own final
+    flush does not fail again (the practice the Python docs give for SIGPIPE).
+    """
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError, io.UnsupportedOperation):
+        pass
+    return click.exceptions.Exit(EXIT_FAIL)
 
 
 def interrupted(summary: Summary, command: str, output: str | None) -> click.exceptions.Exit:

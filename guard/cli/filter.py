@@ -86,6 +86,8 @@ def command(
                 writer.write(outcome)
                 summary.written += 1
             writer.close()
+    except BrokenPipeError:
+        raise common.output_closed() from None
     except KeyboardInterrupt:
         raise common.interrupted(summary, "filter", output) from None
     click.echo(f"guard filter: {summary.line()}", err=True)

@@ -221,7 +221,7 @@ def _open(path: str, stdin: IO[bytes] | None) -> IO[bytes]:
     gz = path.lower().endswith(".gz")
     if path != STDIN:
         # closed by the caller
-        return gzip.open(path, "rb") if gz else open(path, "rb")  # type: ignore[return-value]  # noqa: SIM115
+        return gzip.open(path, "rb") if gz else open(path, "rb")  # type: ignore[return-value]
     stream: IO[bytes] = stdin if stdin is not None else sys.stdin.buffer
     return stream
 

@@ -17,7 +17,7 @@ import os
 import sys
 import tempfile
 from collections.abc import Iterator
-from typing import TextIO
+from typing import IO, TextIO, cast
 
 
 @contextlib.contextmanager
@@ -57,6 +57,35 @@ def atomic_output(
     _sync_folder(folder)
 
 
+class _Utf8Text(io.TextIOBase):
+    """Text written as UTF-8 to a byte stream that this object never closes.
+
+    Unlike a TextIOWrapper over ``sys.stdout.buffer``, dropping it can never close standard
+    output, even when a flush failed on a closed pipe.
+    """
+
+    def __init__(self, buffer: IO[bytes], line_buffering: bool) -> None:
+        super().__init__()
+        self._buffer = buffer
+        self._line_buffering = line_buffering
+
+    def writable(self) -> bool:
+        return True
+
+    def write(self, s: str) -> int:
+        self._buffer.write(s.encode("utf-8"))
+        if self._line_buffering and "\n" in s:
+            self._buffer.flush()
+        return len(s)
+
+    def flush(self) -> None:
+        if not self.closed:
+            self._buffer.flush()
+
+    def isatty(self) -> bool:
+        return self._buffer.isatty()
+
+
 @contextlib.contextmanager
 def _utf8(stream: TextIO, line_buffering: bool) -> Iterator[TextIO]:
     """``stream``'s bytes as UTF-8 text; ``stream`` itself when it has no byte buffer."""
@@ -65,15 +94,14 @@ def _utf8(stream: TextIO, line_buffering: bool) -> Iterator[TextIO]:
         yield stream
         return
     stream.flush()
-    wrapper = io.TextIOWrapper(
-        buffer, encoding="utf-8", newline="", line_buffering=line_buffering, write_through=False
-    )
+    out = _Utf8Text(buffer, line_buffering)
     try:
-        yield wrapper
-    finally:
+        yield cast(TextIO, out)
+    except BaseException:
         with contextlib.suppress(OSError, ValueError):
-            wrapper.flush()
-        wrapper.detach()
+            out.flush()
+        raise
+    out.flush()
 
 
 def _set_mode(tmp: str, path: str) -> None:

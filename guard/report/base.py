@@ -140,7 +140,7 @@ def context(text: str, start: int, end: int, width: int = 40) -> tuple[str, str,
     """(before, span, after) around ``text[start:end]``, each side cut to ``width`` chars.
 
     >>> context("the bilge pump XR-220 fits", 15, 21, width=6)
-    ('…pump ', 'XR-220', ' fits')
+    ('… pump ', 'XR-220', ' fits')
     """
     before = text[max(0, start - width) : start]
     after = text[end : end + width]

@@ -37,8 +37,8 @@ def dumps(obj: object) -> str:
     U+2028 and U+2029 are escaped: they are valid in JSON, but tools that split text
     into lines by Unicode rules (Python's ``str.splitlines``) would break the record.
 
-    >>> dumps({"t": "a\u2028b"})
-    '{"t":"a\\u2028b"}'
+    >>> dumps({"t": "a\\u2028b"})
+    '{"t":"a\\\\u2028b"}'
     """
     text = json.dumps(obj, ensure_ascii=False, separators=(",", ":"))
     return text.replace("\u2028", "\\u2028").replace("\u2029", "\\u2029")

@@ -10,10 +10,13 @@ import selectors
 import signal
 import subprocess
 import sys
+import time
 from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from guard.cli.filter import command
 
@@ -126,28 +129,42 @@ def test_inputs_of_two_formats_are_a_usage_error(tmp_path: Path, ruleset: str) -
     assert "filter writes the format it reads, and the inputs mix csv, jsonl" in err
 
 
+def _waiting_for_input(pid: int) -> None:
+    """Wait until the process sleeps in a read of its input pipe (Linux /proc), so that a
+    signal sent next finds it between records. A wait, not a timing assertion."""
+    wchan = Path(f"/proc/{pid}/wchan")
+    for _ in range(400):
+        try:
+            if wchan.read_text() == "pipe_read":
+                return
+        except OSError:
+            return
+        time.sleep(0.05)
+
+
 def test_ctrl_c_while_streaming_exits_130_after_saying_what_was_done(ruleset: str) -> None:
     """A real SIGINT to a real process reading a pipe, as a person at a terminal sends it."""
     script = "import sys; from guard.cli.main import main; sys.exit(main(sys.argv[1:]))"
-    proc = subprocess.Popen(
+    with subprocess.Popen(
         [sys.executable, "-c", script, "filter", "--rules", ruleset],
         stdin=subprocess.PIPE,
         stdout=subprocess.PIPE,
         stderr=subprocess.PIPE,
         env={**os.environ, "NO_COLOR": "1"},
-    )
-    assert proc.stdin is not None and proc.stdout is not None
-    try:
-        proc.stdin.write(jsonl(ACCEPT).encode())
-        proc.stdin.flush()
-        with selectors.DefaultSelector() as sel:  # a guard against hanging, not a timing check
-            sel.register(proc.stdout, selectors.EVENT_READ)
-            assert sel.select(timeout=120), "filter wrote nothing"
-        first = proc.stdout.readline()
-        proc.send_signal(signal.SIGINT)
-        out, err = proc.communicate(timeout=120)
-    finally:
-        proc.kill()
+    ) as proc:
+        assert proc.stdin is not None and proc.stdout is not None
+        try:
+            proc.stdin.write(jsonl(ACCEPT).encode())
+            proc.stdin.flush()
+            with selectors.DefaultSelector() as sel:  # a guard against hanging
+                sel.register(proc.stdout, selectors.EVENT_READ)
+                assert sel.select(timeout=120), "filter wrote nothing"
+            first = proc.stdout.readline()
+            _waiting_for_input(proc.pid)
+            proc.send_signal(signal.SIGINT)
+            out, err = proc.communicate(timeout=120)
+        finally:
+            proc.kill()
     assert json.loads(first)["guarded"] == "the anchor"
     assert out == b""
     assert err.decode() == (
@@ -155,3 +172,55 @@ def test_ctrl_c_while_streaming_exits_130_after_saying_what_was_done(ruleset: st
         "pairs: accept 1, flag 0, veto 0\n"
     )
     assert proc.returncode == 130
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    st.lists(
+        st.one_of(
+            st.binary(max_size=40),
+            st.builds(
+                lambda s, p: json.dumps({"source": s, "proposal": p}, ensure_ascii=False).encode(
+                    "utf-8", "surrogatepass"
+                ),
+                st.text(max_size=20),
+                st.text(max_size=20),
+            ),
+        ),
+        min_size=1,
+        max_size=8,
+    )
+)
+def test_any_input_gives_one_output_line_per_input_line(parts: list[bytes]) -> None:
+    data = b"\n".join(parts) + b"\n"  # a part with line breaks of its own makes more lines
+    code, out, err = run(["--rules", "base"], data)
+    lines = data.count(b"\n")
+    assert out.count("\n") == lines and out.endswith("\n")
+    for line in out.split("\n")[:-1]:
+        record = json.loads(line)
+        assert ("guarded" in record) != ("error" in record)
+    assert code in (0, 1)
+    assert f"guard filter: read {lines}, written {lines}, " in err
+
+
+def test_a_reader_that_stops_early_ends_the_run_quietly(tmp_path: Path, ruleset: str) -> None:
+    """`guard filter big.jsonl | head -1`: the closed pipe stops the run without a traceback."""
+    batch = tmp_path / "big.jsonl"
+    batch.write_text(jsonl(ACCEPT) * 3000)
+    script = "import sys; from guard.cli.main import main; sys.exit(main(sys.argv[1:]))"
+    with subprocess.Popen(
+        [sys.executable, "-c", script, "filter", str(batch), "--rules", ruleset],
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+    ) as proc:
+        assert proc.stdout is not None and proc.stderr is not None
+        try:
+            first = proc.stdout.readline()
+            proc.stdout.close()
+            err = proc.stderr.read().decode()
+            proc.wait(timeout=120)
+        finally:
+            proc.kill()
+    assert json.loads(first)["guarded"] == "the anchor"
+    assert err == ""
+    assert proc.returncode == 1
