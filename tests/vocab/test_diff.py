@@ -132,7 +132,16 @@ def test_an_unloadable_version_exits_2(tmp_path: Path) -> None:
 
 def _git(repo: Path, *args: str) -> str:
     done = subprocess.run(
-        ["git", "-c", "user.name=Test", "-c", "user.email=test@example.invalid", *args],
+        [
+            "git",
+            "-c",
+            "user.name=Test",
+            "-c",
+            "user.email=test@example.invalid",
+            "-c",
+            "commit.gpgsign=false",
+            *args,
+        ],
         cwd=repo,
         check=True,
         capture_output=True,
