@@ -71,7 +71,7 @@ def command(
     limits = Limits(max_record_bytes=max_record_bytes, max_tokens=max_tokens)
     records = read_records(paths, input_format=input_format, field_names=names, limits=limits)
     summary = Summary()
-    progress = common.Progress()
+    progress = common.Progress(report_on_terminal=output is None and sys.stdout.isatty())
     try:
         with atomic_output(output) as stream:
             to_terminal = output is None and common.wants_colour(sys.stdout)

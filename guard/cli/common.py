@@ -178,12 +178,20 @@ def wants_colour(stream: TextIO) -> bool:
 class Progress:
     """A one-line count on stderr, redrawn at most every few tenths of a second.
 
-    Shown only when stderr is a terminal, so logs and pipes never see it.
+    Shown only when stderr is a terminal, so logs and pipes never see it, and not when
+    the report itself goes to that terminal (``report_on_terminal``), where it would
+    interleave with the report.
     """
 
-    def __init__(self, stream: TextIO | None = None, *, every: float = 0.2) -> None:
+    def __init__(
+        self,
+        stream: TextIO | None = None,
+        *,
+        every: float = 0.2,
+        report_on_terminal: bool = False,
+    ) -> None:
         self.stream = stream if stream is not None else sys.stderr
-        self.enabled = _isatty(self.stream)
+        self.enabled = _isatty(self.stream) and not report_on_terminal
         self.every = every
         self._last = 0.0
         self._drawn = False

@@ -34,7 +34,7 @@ color:#1d1d1f}
 h1{font-size:1.5rem}h2{font-size:1.15rem;margin-top:2rem}
 table{border-collapse:collapse;width:100%}
 th,td{text-align:left;padding:.3rem .5rem;vertical-align:top;border-bottom:1px solid #ddd}
-.tally td{border:none;padding:.1rem .8rem .1rem 0}
+.tally{width:auto}.tally td{border:none;padding:.1rem .8rem .1rem 0}
 .charts{display:flex;flex-wrap:wrap;gap:1.5rem}.charts figure{margin:0}
 figcaption{font-weight:600;margin-bottom:.3rem}
 del{background:#fde2e1;text-decoration:line-through}ins{background:#dcf5dc;text-decoration:none}

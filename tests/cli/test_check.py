@@ -276,3 +276,21 @@ def test_colour_only_on_a_terminal_without_no_color(monkeypatch: pytest.MonkeyPa
     assert not wants_colour(_Tty())
     monkeypatch.setenv("NO_COLOR", "")
     assert wants_colour(_Tty())
+
+
+def test_progress_only_on_a_terminal_and_not_over_the_report() -> None:
+    from guard.batch import Summary
+    from guard.cli.common import Progress
+
+    summary = Summary(read=3, errors=1)
+    summary.verdicts.update({"veto": 2})
+    tty = _Tty()
+    bar = Progress(tty, every=0)
+    bar.update(summary)
+    bar.close()
+    assert tty.getvalue() == "\r3 records: 2 veto, 0 flag, 1 errors \r\x1b[K"
+    for stream, on_terminal in ((io.StringIO(), False), (_Tty(), True)):
+        quiet = Progress(stream, every=0, report_on_terminal=on_terminal)
+        quiet.update(summary)
+        quiet.close()
+        assert stream.getvalue() == ""
