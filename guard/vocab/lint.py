@@ -1,20 +1,24 @@
 """Lint rulesets: every problem of every ruleset named, in one run, ordered by file and line.
 
 The loader (guard.ruleset.load_problems) finds what is wrong with one ruleset; this module
-gathers the problems of many rulesets, drops the ones two rulesets share (a term list both
+adds the one check the loader leaves out (a term listed under two case policies), gathers
+the problems of many rulesets, drops the ones two rulesets share (a term list both
 read), orders them by file and line so that a reviewer reads a file top to bottom, counts
 them and renders them as lines. It never prints and never exits: the CLI does that.
 """
 
 from __future__ import annotations
 
+import contextlib
 import os
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
-from guard.errors import Problem
-from guard.ruleset import load_problems
+from guard.errors import Problem, RulesetError
+from guard.ruleset import load_problems, load_ruleset
+from guard.ruleset.model import CompiledRuleset, TermEntry
+from guard.text.normalize import normalize_key
 
 ERROR = "error"
 WARNING = "warning"
@@ -113,8 +117,42 @@ def lint(paths: Sequence[str | Path], *, relative_to: Path | None = None) -> Lin
     """
     found: list[Problem] = []
     for path in paths:
-        found.extend(load_problems(Path(path)))
+        problems = load_problems(Path(path))
+        found.extend(problems)
+        if not any(p.severity == ERROR for p in problems):
+            # A ruleset without errors loads; should it not, load_problems said why.
+            with contextlib.suppress(RulesetError):
+                found.extend(case_policy_duplicates(load_ruleset(Path(path))))
     return collect(found, [str(p) for p in paths], relative_to=relative_to)
+
+
+def case_policy_duplicates(ruleset: CompiledRuleset) -> list[Problem]:
+    """Terms listed both case-exact and case-folded: the folded entry already covers both.
+
+    The loader finds duplicates within one case policy; this adds the ones across them
+    (``Tollmere`` in an exact list, ``TOLLMERE`` in a folded one), each reported at the
+    entry listed later and naming the first.
+    """
+    first: dict[str, TermEntry] = {}
+    found: list[Problem] = []
+    for entry in ruleset.terms:
+        folded = normalize_key(entry.term, fold=True)
+        seen = first.setdefault(folded, entry)
+        if seen is entry or seen.case is entry.case:
+            continue  # same policy: the loader reports it
+        found.append(
+            Problem(
+                file=entry.origin.file,
+                line=entry.origin.line,
+                severity=WARNING,
+                message=(
+                    f"duplicate term '{entry.term}' across case policies: '{seen.term}' is "
+                    f"listed with case {seen.case.value} at {seen.origin}; the case-folded "
+                    "entry matches both"
+                ),
+            )
+        )
+    return found
 
 
 def format_problem(problem: Problem) -> str:
