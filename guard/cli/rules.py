@@ -5,11 +5,13 @@ Thin commands over guard.vocab.lint, .selftest, .show and .diff. Exit codes:
 - lint: 0 no errors (warnings allowed), 1 warnings under ``--strict``, 2 any error.
 - test: 0 every example passed, 1 some failed, 2 a ruleset could not be loaded.
 - show: 0, or 2 when the ruleset could not be loaded.
-- diff: 0 no rewrite went from veto to accept, 1 some did, 2 a ruleset, revision or
-  input record could not be read (the whole batch is still compared and reported).
+- diff: 0 no rewrite went from veto to accept, 1 some did or some input record could not
+  be read or checked (what was not compared was not reviewed; the rest of the batch is
+  still compared and reported), 2 a ruleset or revision could not be loaded or the usage
+  is wrong, before any record is read.
 
-With no PATH, lint and test take every ``ruleset.toml`` below the current folder, so that
-a pre-commit hook needs no arguments.
+With no PATH, lint and test take every ``ruleset.toml`` and ``guard-rules.toml`` below the
+current folder, so that a pre-commit hook needs no arguments.
 """
 
 from __future__ import annotations
@@ -51,7 +53,8 @@ def _targets(refs: Sequence[str]) -> list[str]:
     here = Path.cwd()
     found = linting.find_rulesets(here)
     if not found:
-        raise click.UsageError(f"no PATH given and no ruleset.toml below {here}")
+        names = " or ".join(linting.RULESET_NAMES)
+        raise click.UsageError(f"no PATH given and no {names} below {here}")
     return [str(p.relative_to(here)) for p in found]
 
 
@@ -81,8 +84,8 @@ def rules() -> None:
 def lint_command(ctx: click.Context, paths: tuple[str, ...], strict: bool) -> None:
     """Report every error and warning of the rulesets named, sorted by file and line.
 
-    With no PATH, every ruleset.toml below the current folder. Exit 2 on any error; with
-    --strict, exit 1 on warnings alone; else 0.
+    With no PATH, every ruleset.toml and guard-rules.toml below the current folder. Exit 2
+    on any error; with --strict, exit 1 on warnings alone; else 0.
     """
     result = linting.lint(_targets(paths), relative_to=_display_base(paths))
     for line in linting.format_result(result):
@@ -99,8 +102,8 @@ def lint_command(ctx: click.Context, paths: tuple[str, ...], strict: bool) -> No
 def examples_command(ctx: click.Context, paths: tuple[str, ...], quiet: bool) -> None:
     """Run the examples each ruleset named carries, through the guard engine.
 
-    With no PATH, every ruleset.toml below the current folder. Exit 1 if an example fails,
-    2 if a ruleset cannot be loaded, else 0.
+    With no PATH, every ruleset.toml and guard-rules.toml below the current folder. Exit 1
+    if an example fails, 2 if a ruleset cannot be loaded, else 0.
     """
     outcomes: list[selftest.Outcome] = []
     broken = 0
@@ -167,7 +170,7 @@ def _checker(ruleset: CompiledRuleset, lang: str | None) -> diffing.PairChecker:
 def _load_version(which: str, ref: str, workdir: Path) -> CompiledRuleset | None:
     """Load one side of a diff, reporting why it cannot be loaded on stderr."""
     try:
-        return load_ruleset(diffing.materialize(_ref(ref), workdir))
+        return load_ruleset(_ref(diffing.materialize(ref, workdir)))
     except RulesetError as e:
         click.echo(f"{which} ruleset {ref}: cannot load", err=True)
         _show_problems(e, _display_base([ref]))
@@ -209,8 +212,9 @@ def diff_command(
     """Show which verdicts change on a batch between ruleset OLD and ruleset NEW.
 
     OLD and NEW are paths, bundled names, or REV:PATH for the ruleset at PATH as it was at
-    git revision REV. Exit 1 when any rewrite goes from veto to accept; 2 when a version
-    cannot be loaded or a record cannot be read (the rest of the batch is still compared).
+    git revision REV. Exit 1 when any rewrite goes from veto to accept or a record cannot
+    be read or checked (the rest of the batch is still compared); 2 when a version cannot
+    be loaded.
     """
     try:
         records = read_records([pairs_path], input_format=input_format)
@@ -226,9 +230,7 @@ def diff_command(
         ctx.exit(EXIT_ERROR)
     result = diffing.diff_batch(records, _checker(before, lang), _checker(after, lang))
     click.echo(diffing.RENDERERS[fmt](result, old_name=old, new_name=new))
-    if result.errors:
-        ctx.exit(EXIT_ERROR)
-    ctx.exit(EXIT_FAIL if result.loosened else EXIT_OK)
+    ctx.exit(EXIT_FAIL if result.loosened or result.errors else EXIT_OK)
 
 
 command = rules

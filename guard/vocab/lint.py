@@ -169,15 +169,20 @@ def format_result(result: LintResult) -> list[str]:
     return [*(format_problem(p) for p in result.problems), result.summary()]
 
 
+RULESET_NAMES = ("ruleset.toml", "guard-rules.toml")
+"""File names `rules lint` and `rules test` look for when given no path: the name of a
+ruleset in its folder, and the per-project file `guard check` reads by default."""
+
+
 def find_rulesets(root: Path) -> list[Path]:
-    """Every ``ruleset.toml`` below ``root``, skipping VCS folders and environments.
+    """Every ruleset file below ``root`` (see RULESET_NAMES), skipping VCS folders and
+    environments.
 
     Used when `guard rules lint` or `guard rules test` get no path (as in a pre-commit
-    hook that runs once per commit): the conventional file name finds every ruleset.
+    hook that runs once per commit): conventional file names find every ruleset.
     """
     found: list[Path] = []
     for folder, dirs, files in os.walk(root):
         dirs[:] = sorted(d for d in dirs if d not in _SKIP_DIRS)
-        if "ruleset.toml" in files:
-            found.append(Path(folder) / "ruleset.toml")
+        found.extend(Path(folder) / name for name in RULESET_NAMES if name in files)
     return sorted(found)

@@ -205,9 +205,12 @@ def test_find_rulesets_skips_environments(tmp_path: Path) -> None:
     for folder in ("a", "b/c", ".venv/lib", ".git/x"):
         (tmp_path / folder).mkdir(parents=True)
         (tmp_path / folder / "ruleset.toml").write_text("", encoding="utf-8")
+    (tmp_path / "guard-rules.toml").write_text("", encoding="utf-8")
+    (tmp_path / "a" / "other.toml").write_text("", encoding="utf-8")
     assert find_rulesets(tmp_path) == [
         tmp_path / "a" / "ruleset.toml",
         tmp_path / "b" / "c" / "ruleset.toml",
+        tmp_path / "guard-rules.toml",
     ]
 
 
