@@ -15,7 +15,6 @@ from guard.records import Finding, Report, RewriteVerdict, Verdict
 from guard.rules import REGISTRY, PairContext, Rule, Scope
 from guard.rules.words import PATTERN_TIMEOUT_S
 from guard.ruleset.model import CompiledRuleset, PatternHit, PatternTimeout, RuleSettings
-from guard.text.tokenize import tokenize
 
 
 @dataclass(frozen=True, slots=True)
@@ -70,8 +69,7 @@ class Engine:
             proposal=proposal,
             lang=lang,
             score=score,
-            source_tokens=tokenize(source),
-            proposal_tokens=tokenize(proposal),
+            source_words=len(source.split()),
             rewrites=rewrites,
             term_hits=rs.find_terms(source) if rs.terms else (),
             pattern_hits=hits,

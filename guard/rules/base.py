@@ -12,7 +12,7 @@ from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
-from guard.records import Action, EvidenceValue, Finding, Origin, Rewrite, Tier, Token
+from guard.records import Action, EvidenceValue, Finding, Origin, Rewrite, Tier
 
 if TYPE_CHECKING:
     from guard.ruleset.lexicon import Lexicon
@@ -48,8 +48,7 @@ class PairContext:
     proposal: str
     lang: str
     score: float | None
-    source_tokens: tuple[Token, ...]
-    proposal_tokens: tuple[Token, ...]
+    source_words: int  # whitespace-separated words in the source (for density)
     rewrites: tuple[Rewrite, ...]
     term_hits: tuple[TermHit, ...]  # protected terms in the source
     pattern_hits: tuple[PatternHit, ...]  # protected-pattern matches in the source

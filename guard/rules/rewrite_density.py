@@ -25,7 +25,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
     assert rw is None
     if not ctx.rewrites:
         return
-    words = len(content_tokens(ctx.source_tokens))
+    words = ctx.source_words
     min_words = settings.option("min-words", ctx.lang)
     max_share = settings.option("max-share", ctx.lang)
     max_rewrites = settings.option("max-rewrites", ctx.lang)
