@@ -10,8 +10,17 @@ import pytest
 from click.testing import CliRunner
 
 from guard.cli.rules import command
+from guard.errors import RecordError
+from guard.records import Report
 from guard.ruleset import load_ruleset
-from guard.vocab.selftest import run_examples, summary, verdict_diff
+from guard.ruleset.model import Example
+from guard.vocab.selftest import (
+    engine_checker,
+    format_outcome,
+    run_examples,
+    summary,
+    verdict_diff,
+)
 
 GOOD = Path(__file__).parent / "fixtures" / "good"
 
@@ -142,3 +151,17 @@ def test_summary_counts() -> None:
     outcomes = run_examples(load_ruleset(GOOD / "ruleset.toml"))
     assert [o.passed for o in outcomes] == [True, True]
     assert summary(outcomes) == "2 passed, 0 failed"
+
+
+def test_a_check_that_raises_fails_its_example_and_the_rest_still_run() -> None:
+    ruleset = load_ruleset(GOOD / "ruleset.toml")
+    real = engine_checker(ruleset)
+
+    def check(example: Example) -> Report:
+        if example.source.startswith("the quillon"):
+            raise RecordError("too many tokens", line=1)
+        return real(example)
+
+    outcomes = run_examples(ruleset, check)
+    assert [o.passed for o in outcomes] == [False, True]
+    assert format_outcome(outcomes[0])[1:] == ["      check failed: <input>:1: too many tokens"]
