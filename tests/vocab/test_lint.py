@@ -18,14 +18,13 @@ from guard.vocab.lint import collect, find_rulesets, format_result, lint
 
 FIXTURES = Path(__file__).parent / "fixtures"
 BROKEN = FIXTURES / "broken"
-SYNTAX = FIXTURES / "syntax"
 WARNINGS = FIXTURES / "warnings"
 
 # (file, line, severity, a word the message must contain); one row per class.
 ERRORS = [
     pytest.param(
         # TOML 1.0.0 spec, "Keys": a key/value pair must have a value on the same line.
-        SYNTAX / "ruleset.toml",
+        BROKEN / "syntax.toml",
         4,
         "error",
         "toml",
@@ -130,10 +129,10 @@ def _run(*args: str) -> tuple[int, list[str]]:
 
 @pytest.fixture(scope="module")
 def one_run() -> tuple[int, list[str]]:
-    """Lint all three fixture rulesets in a single invocation."""
-    return _run(
-        str(BROKEN / "ruleset.toml"), str(SYNTAX / "ruleset.toml"), str(WARNINGS / "ruleset.toml")
-    )
+    """Lint both fixture rulesets in a single invocation: the broken one holds every error
+    class (a ruleset with errors is not compiled, so its lint warnings are not computed);
+    the other every warning class."""
+    return _run(str(BROKEN / "ruleset.toml"), str(WARNINGS / "ruleset.toml"))
 
 
 def _hits(lines: list[str], file: Path, line: int, severity: str, word: str) -> list[str]:
@@ -159,7 +158,7 @@ def test_errors_exit_2_and_the_summary_counts(one_run: tuple[int, list[str]]) ->
     assert errors >= len(ERRORS)
     assert warnings >= len(WARNS)
     assert (
-        lines[-1] == f"{errors} errors, {warnings} warnings in {files} files (3 rulesets checked)"
+        lines[-1] == f"{errors} errors, {warnings} warnings in {files} files (2 rulesets checked)"
     )
 
 
