@@ -43,6 +43,7 @@ NormalizedText = NewType("NormalizedText", str)
 # intent survives), and the Default_Ignorable_Code_Point characters that are not Cf but
 # render as nothing: variation selectors (which can smuggle data), the combining grapheme
 # joiner, the Hangul fillers.
+_NONSPACING = regex.compile(r"\p{Mn}+")
 _HIDDEN = regex.compile(r"[\p{Cf}\p{Bidi_Control}\p{Default_Ignorable_Code_Point}]")
 
 
@@ -120,9 +121,9 @@ def strip_accents(text: str) -> str:
     >>> strip_accents("ø")
     'ø'
     """
-    decomposed = unicodedata.normalize("NFD", text)
-    kept = "".join(ch for ch in decomposed if unicodedata.category(ch) != "Mn")
-    return unicodedata.normalize("NFC", kept)
+    if text.isascii():
+        return text
+    return unicodedata.normalize("NFC", _NONSPACING.sub("", unicodedata.normalize("NFD", text)))
 
 
 def hidden_characters(text: str) -> tuple[tuple[int, str], ...]:

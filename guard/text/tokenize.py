@@ -50,12 +50,33 @@ _NOSPACE = (
     r"\p{scx=Khmer}\p{scx=Myanmar}\p{scx=Tai_Tham}"
 )
 _W = rf"[\w--[{_NOSPACE}]]"  # a word character of a script that uses spaces
+# A word of letters and marks, starting with a letter. Runs of such words separated by
+# single spaces are the bulk of prose: one match takes the whole run and Python splits it.
+_PLAIN = rf"[[\p{{L}}]--[{_NOSPACE}]][[\p{{L}}\p{{M}}]--[{_NOSPACE}]]*+"
 _SEG = r"[\w\-+~%$]+(?:\.[\w\-+~%$]+)*"  # a path segment: dots only inside
 _TAIL_STOP = r"""[^\s<>"'`.,;:!?)\]}]"""  # what a URL may end with
 
+_ELISION = r"""(?<![\w'’])
+      (?i:[ldjmnstc]|qu|jusqu|lorsqu|puisqu|quoiqu|presqu|dell|nell|all|dall|sull|coll
+          |quell|un|nessun|buon|bell|sant)
+      ['’](?=\p{L})"""
+# Word characters with internal joiners: digit.digit, letter'letter, hyphens and dots.
+_CHUNK = rf"""{_W}+
+      (?:(?:(?<=\d)[.,](?=\d)|(?<=\p{{L}}\p{{M}}*)['’·](?=\p{{L}})|[\-‐.](?={_W})){_W}+)*
+      (?:\(\)|(?<=\d)(?:%|‰))?"""
+# After a word, what could make it part of a URL, e-mail or path.
+_LITERAL_NEXT = r"[@/\\+]|:[/\\]"
+
+# Alternatives are tried in order at each token start. The first ones are the fast,
+# common cases (whitespace, runs of plain words, punctuation, a word that no literal
+# can continue); the literal kinds follow; the last ones take whatever is left.
 _PATTERN = rf"""
   (?P<space>(?>\r\n|\s)+{_END})
-| (?P<plain>[[\p{{L}}\p{{M}}]--[{_NOSPACE}]]++(?![\w\-‐.'’·@/:\\(%‰]){_END})
+| (?P<prose>{_PLAIN}(?:\x20{_PLAIN})*(?![\w\-‐.'’·(%‰]|{_LITERAL_NEXT}){_END})
+| (?P<mark>[,;:!?()\[\]{{}}"«»“”„]{_END})
+| (?P<cluster>(?=[[\w]&&[{_NOSPACE}]])\X)
+| (?P<elision>{_ELISION}{_END})
+| (?P<word>(?!www\.)(?>{_CHUNK})(?!{_LITERAL_NEXT}|['’]){_END})
 | (?P<url>(?:[A-Za-z][A-Za-z0-9+.\-]*://|www\.)[^\s<>"'`]*{_TAIL_STOP}{_END})
 | (?P<email>(?<![\w.+\-])[\w+\-]+(?:\.[\w+\-]+)*@[\w\-]+(?:\.[\w\-]+)+{_END})
 | (?P<path>
@@ -68,16 +89,7 @@ _PATTERN = rf"""
 | (?P<hashtag>(?<![\w#&])\#\w*[^\W\d_]\w*{_END})
 | (?P<flag>(?<![\w\-])--?[A-Za-z][\w\-]*(?<!-)(?:=[^\s,;]*[^\s.,;:!?)'"])?{_END})
 | (?P<number>(?<![\w.\-+\u2212])[\-+\u2212]\d+(?:[.,]\d+)*(?:%|‰|\p{{L}}+)?{_END})
-| (?P<elision>(?<![\w'’])
-      (?i:[ldjmnstc]|qu|jusqu|lorsqu|puisqu|quoiqu|presqu|dell|nell|all|dall|sull|coll
-          |quell|un|nessun|buon|bell|sant)
-      ['’](?=\p{{L}}){_END})
-| (?P<cluster>(?=[[\w]&&[{_NOSPACE}]])\X)
-| (?P<chunk>
-      {_W}+
-      (?:(?:(?<=\d)[.,](?=\d)|(?<=\p{{L}}\p{{M}}*)['’·](?=\p{{L}})|[\-‐.](?={_W})){_W}+)*
-      (?:\(\)|(?<=\d)(?:%|‰))?{_END}
-  )
+| (?P<chunk>{_CHUNK}{_END})
 | (?P<other>\X)
 """
 
@@ -98,6 +110,7 @@ _GROUP_KIND = {
     "flag": TokenKind.FLAG,
     "number": TokenKind.NUMBER,
     "elision": TokenKind.WORD,
+    "mark": TokenKind.PUNCT,
     "cluster": TokenKind.WORD,
     "space": TokenKind.SPACE,
 }
@@ -105,6 +118,10 @@ _GROUP_KIND = {
 
 def _chunk_kind(chunk: str) -> TokenKind:
     """Classify a run of word characters and internal joiners."""
+    if chunk.isalpha():
+        return _plain_kind(chunk)
+    if chunk.isdigit():
+        return TokenKind.NUMBER
     if chunk.endswith("()"):
         return TokenKind.IDENTIFIER
     has_letter = _HAS_LETTER.search(chunk) is not None
@@ -136,7 +153,8 @@ def _other_kind(cluster: str) -> TokenKind:
     return TokenKind.PUNCT if _PUNCT.match(cluster) else TokenKind.SYMBOL
 
 
-_CLASSIFY = {"plain": _plain_kind, "chunk": _chunk_kind, "other": _other_kind}
+_CLASSIFY = {"word": _chunk_kind, "chunk": _chunk_kind, "other": _other_kind}
+_SPACE = TokenKind.SPACE
 
 
 def spans(text: str) -> list[tuple[int, int, TokenKind]]:
@@ -156,10 +174,19 @@ def spans(text: str) -> list[tuple[int, int, TokenKind]]:
         # The tokens tile the text, so each starts where the one before ended.
         end = m.end()
         group = m.lastgroup
-        kind = fixed.get(group)  # type: ignore[arg-type]
-        if kind is None:
-            kind = classify[group](text[start:end])  # type: ignore[index]
-        out.append((start, end, kind))
+        if group == "prose":
+            at = start
+            for word in text[start:end].split(" "):
+                stop = at + len(word)
+                out.append((at, stop, _plain_kind(word)))
+                out.append((stop, stop + 1, _SPACE))
+                at = stop + 1
+            out.pop()  # the split made one space too many
+        else:
+            kind = fixed.get(group)  # type: ignore[arg-type]
+            if kind is None:
+                kind = classify[group](text[start:end])  # type: ignore[index]
+            out.append((start, end, kind))
         start = end
     return out
 
