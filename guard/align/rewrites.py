@@ -112,7 +112,8 @@ def _refinement(old: str, new: str) -> Refinement | None:
 
 
 def _squash(text: str) -> str:
-    return _SPACE_OR_HYPHEN.sub("", text)
+    """The letters a split or join must keep: no spaces, no hyphens, any case."""
+    return _SPACE_OR_HYPHEN.sub("", text).casefold()
 
 
 def _regions(

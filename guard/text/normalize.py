@@ -43,8 +43,8 @@ NormalizedText = NewType("NormalizedText", str)
 # intent survives), and the Default_Ignorable_Code_Point characters that are not Cf but
 # render as nothing: variation selectors (which can smuggle data), the combining grapheme
 # joiner, the Hangul fillers.
-_NONSPACING = regex.compile(r"\p{Mn}+")
 _HIDDEN = regex.compile(r"[\p{Cf}\p{Bidi_Control}\p{Default_Ignorable_Code_Point}]")
+_NONSPACING = regex.compile(r"\p{Mn}+")
 
 
 def nfc(text: str) -> str:

@@ -18,6 +18,7 @@ from hypothesis import strategies as st
 
 from guard.align import align, apply
 from guard.records import RewriteKind
+from guard.text.tokenize import tokenize
 
 PIECES = [
     "pump",
@@ -152,3 +153,14 @@ def test_any_subset_applies(pair: tuple[str, str], data: st.DataObject) -> None:
     # what is not chosen stays as in the source: undoing the chosen ones gives it back
     undo = align(result, source)
     assert apply(result, undo) == source
+
+
+@settings(max_examples=2000, deadline=None)
+@given(pairs())
+def test_rewrite_tokens_are_the_texts_own_tokens(pair: tuple[str, str]) -> None:
+    # align tokenizes only the changed region; its tokens must be those of the whole text
+    source, proposal = pair
+    source_tokens, proposal_tokens = set(tokenize(source)), set(tokenize(proposal))
+    for r in align(source, proposal):
+        assert set(r.old_tokens) <= source_tokens
+        assert set(r.new_tokens) <= proposal_tokens
