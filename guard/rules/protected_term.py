@@ -4,6 +4,10 @@ Terms come from the ruleset's term lists, each with a kind (acronym, code, name,
 and a case policy. For a case-insensitive term, a change of letter case only leaves the
 term intact and is not this rule's business (letter-shape judges it).
 
+A ruleset may also hold for review a rewrite that lands on a term of some kinds from a
+word that is not one (``flag-toward-kinds = ["drug"]``): in clinical text even a right fix
+toward a drug name deserves a second look.
+
 Accepts: with "Quillmate" protected, "Quillmate sycn" -> "Quillmate sync".
 Vetoes: with "Quillmate" protected, "Quillmate" -> "Quill mate", naming the term list
 file and line.
@@ -14,7 +18,7 @@ from __future__ import annotations
 from collections.abc import Iterator
 
 from guard.records import Action, Finding, Rewrite, Tier
-from guard.rules.base import PairContext, Rule, Scope, finding
+from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.ruleset.model import CasePolicy, RuleSettings
 from guard.text.normalize import normalize_key
 
@@ -44,6 +48,24 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             found=ctx.source[hit.start : hit.end],
         )
         return
+    kinds = settings.option("flag-toward-kinds", ctx.lang)
+    assert isinstance(kinds, tuple)
+    if kinds:
+        target = ctx.ruleset.lookup_term(rw.new.strip())
+        same = target is not None and ctx.ruleset.lookup_term(rw.old.strip()) == target
+        if target is not None and target.kind in kinds and not same:
+            yield finding(
+                NAME,
+                Tier.DOMAIN,
+                settings,
+                "the rewrite turns '{old}' into protected {kind} '{term}'; held for review",
+                rewrite=rw.index,
+                origin=target.origin,
+                action=Action.FLAG,
+                old=rw.old,
+                term=target.term,
+                kind=target.kind,
+            )
 
 
 RULE = Rule(
@@ -51,6 +73,14 @@ RULE = Rule(
     scope=Scope.REWRITE,
     tier=Tier.DOMAIN,
     default_action=Action.VETO,
+    options={
+        "flag-toward-kinds": OptionSpec(
+            default=(),
+            type=tuple,
+            doc="term kinds a rewrite may not land on without review (flagged)",
+            per_lang=True,
+        ),
+    },
     check=check,
     doc=__doc__ or "",
 )
