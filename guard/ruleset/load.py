@@ -464,25 +464,27 @@ class _FileReader:
                 continue
             self.layer.terms.extend(self.read_terms(path, f"{key}.file", kind, case))
 
-    def read_terms(self, path: Path, key: str, kind: str, case: CasePolicy) -> Iterator[TermEntry]:
+    def read_terms(self, path: Path, key: str, kind: str, case: CasePolicy) -> list[TermEntry]:
         fold = case is CasePolicy.FOLD
         file = str(path)
+        limit = self.limits.max_term_chars
+        out: list[TermEntry] = []
         for n, text in self.list_lines(path, key):
-            if len(text) > self.limits.max_term_chars:
-                self.p.error(file, f"term longer than {self.limits.max_term_chars} characters", n)
+            if len(text) > limit:
+                self.p.error(file, f"term longer than {limit} characters", n)
                 continue
-            term = (
-                collapse_spaces(text)
-                if not text.isascii() or "  " in text or "\t" in text
-                else text
+            if not text.isascii() or "  " in text or "\t" in text:
+                text = collapse_spaces(text)
+            out.append(
+                TermEntry(
+                    term=text,
+                    key=normalize_key(text, fold=fold),
+                    kind=kind,
+                    case=case,
+                    origin=Origin(file=file, line=n),
+                )
             )
-            yield TermEntry(
-                term=term,
-                key=normalize_key(term, fold=fold),
-                kind=kind,
-                case=case,
-                origin=Origin(file=file, line=n),
-            )
+        return out
 
     def list_lines(self, path: Path, key: str) -> Iterator[tuple[int, str]]:
         """(line number, content) of every non-blank, non-comment line of a list file."""
@@ -507,8 +509,10 @@ class _FileReader:
             return
         if text.startswith("\ufeff"):
             text = text[1:]
-        for n, raw in enumerate(text.splitlines(), 1):
-            content = strip_comment(raw)
+        # Lines end at LF (CR LF too); Unicode's other line breaks (U+2028...) are kept
+        # inside a line, so that line numbers agree with editors and with the UTF-8 check.
+        for n, raw in enumerate(text.split("\n"), 1):
+            content = strip_comment(raw) if "#" in raw else raw.strip()
             if content:
                 yield n, content
 

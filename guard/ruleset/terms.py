@@ -1,42 +1,46 @@
-"""Find protected terms in a text: one Aho-Corasick pass per case policy, original offsets.
+"""Find protected terms in a text: whole words, longest first, offsets into the text as given.
 
 Terms are keyed by :func:`guard.text.normalize.normalize_key`: NFC for ``exact`` terms,
-NFC plus full case folding for ``fold`` terms. The text is brought to the same form
-before matching, and every hit is mapped back to offsets in the text as given, because
-folding changes lengths (``ß`` -> ``ss``, ``ﬁ`` -> ``fi``, ``İ`` -> ``i`` + U+0307). Maps
-are computed only when a step changes the text (most texts are already NFC and fold
-length for length), and only looked up for the hits found.
+NFC plus full case folding for ``fold`` terms. A term matches whole words only: it may
+not start or end inside a run of letters, digits and combining marks. So the text is cut
+into *pieces* (a run of letters, digits and marks; any other visible character alone;
+in scripts written without spaces, Han, Kana, Thai and their neighbours, each
+character alone, so that a term is found inside an unspaced run), and a term is a
+sequence of pieces. Matching looks each piece up in a table of first pieces and, where
+a term may start, joins the next pieces (whitespace between them as one space) and looks
+the phrase up in a dict of keys.
 
-A term matches whole words only: the character before and after a hit, in the original
-text, must not be a letter, digit or combining mark (where the term's own edge is one).
-Words of a multiword term match across any run of whitespace. Where hits overlap, the
-longest wins. Nothing here reads files; the matcher is read-only once built and may be
-shared by any number of threads.
+Why pieces and dicts rather than a character automaton: a term can only start and end
+at piece edges anyway, so nothing is lost; building is a dict insert per term (an
+automaton over a million terms has some ten million nodes and takes seconds to build and
+hundreds of megabytes to hold); and offsets come straight from the pieces of the text as
+given, so case folding that changes lengths (``ß`` -> ``ss``, ``ﬁ`` -> ``fi``, ``İ`` ->
+``i`` + U+0307) needs no offset map at all. Only a text that is not in NFC is composed
+first, with a map back.
+
+Nothing here reads files; a matcher is read-only once built and may be shared by any
+number of threads.
 """
 
 from __future__ import annotations
 
+import re
 import unicodedata
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable
 
-import ahocorasick  # type: ignore[import-not-found]  # ships no type stubs
 import regex
 
 from guard.ruleset.model import CasePolicy, TermEntry, TermHit
-from guard.text.normalize import fold_with_map, normalize_key
+from guard.text.normalize import normalize_key
 
+_UNSPACED = r"\p{Han}\p{Hiragana}\p{Katakana}\p{Thai}\p{Lao}\p{Khmer}\p{Myanmar}"
+_PIECE = regex.compile(
+    rf"[{_UNSPACED}]\p{{M}}*|[[\p{{L}}\p{{M}}\p{{N}}]--[{_UNSPACED}]]+|\S", regex.V1
+)
+# The same cut for ASCII text, with the standard library's faster engine. Whitespace is
+# spelt out: Unicode White_Space (which the pattern above uses) has no U+001C..U+001F.
+_ASCII_PIECE = re.compile(r"[A-Za-z0-9]+|[^ \t\n\r\x0b\x0c]")
 _CLUSTER = regex.compile(r"\X")
-_ODD_SPACE = regex.compile(r"[^\S ]| {2,}")  # whitespace other than single U+0020
-_SPACE_RUN = regex.compile(r"\s+")
-
-
-def is_word_char(ch: str) -> bool:
-    """Letters, digits and combining marks: what a term may not touch at either end.
-
-    >>> is_word_char("a"), is_word_char("7"), is_word_char("\u0301"), is_word_char("-")
-    (True, True, True, False)
-    """
-    return ch.isalnum() or unicodedata.category(ch)[0] in "LMN"
 
 
 def collapse_spaces(text: str) -> str:
@@ -46,6 +50,28 @@ def collapse_spaces(text: str) -> str:
     'bilge pump'
     """
     return " ".join(text.split())
+
+
+def pieces(text: str) -> list[str]:
+    """The pieces a term or text is cut into (see the module docstring).
+
+    >>> pieces("Dr. Ilse XR-220B, C#")
+    ['Dr', '.', 'Ilse', 'XR', '-', '220B', ',', 'C', '#']
+    >>> pieces("東京タワー")
+    ['東', '京', 'タ', 'ワ', 'ー']
+    """
+    return _PIECE.findall(text)
+
+
+def _first_piece(key: str) -> tuple[str, int]:
+    """(first piece, number of pieces) of a term key."""
+    if key.isascii():
+        if key.isalnum():
+            return key, 1
+        found = _ASCII_PIECE.findall(key)
+    else:
+        found = pieces(key)
+    return found[0], len(found)
 
 
 def _nfc_with_map(text: str) -> tuple[str, list[int]]:
@@ -64,45 +90,10 @@ def _nfc_with_map(text: str) -> tuple[str, list[int]]:
     return "".join(parts), origin
 
 
-def _spaces_with_map(text: str) -> tuple[str, list[int]]:
-    """Every whitespace run as one U+0020, with the map back (plus a final entry)."""
-    parts: list[str] = []
-    origin: list[int] = []
-    pos = 0
-    for m in _SPACE_RUN.finditer(text):
-        parts.append(text[pos : m.start()])
-        origin.extend(range(pos, m.start()))
-        parts.append(" ")
-        origin.append(m.start())
-        pos = m.end()
-    parts.append(text[pos:])
-    origin.extend(range(pos, len(text) + 1))
-    return "".join(parts), origin
-
-
-class _View:
-    """A derived form of the text with the chain of maps back to the original."""
-
-    __slots__ = ("maps", "text")
-
-    def __init__(self, text: str, maps: tuple[Sequence[int], ...]) -> None:
-        self.text = text
-        self.maps = maps  # applied last-first: maps[-1] maps into maps[-2]'s text...
-
-    def derive(self, text: str, origin: Sequence[int] | None) -> _View:
-        return _View(text, self.maps if origin is None else (*self.maps, origin))
-
-    def original(self, i: int) -> int:
-        for m in reversed(self.maps):
-            i = m[i]
-        return i
-
-
 class TermMatcher:
     """Protected terms of a ruleset, compiled for matching (read-only once built).
 
     >>> from guard.records import Origin
-    >>> from guard.ruleset.model import CasePolicy, TermEntry
     >>> e = TermEntry(term="Straße", key=normalize_key("Straße", fold=True), kind="name",
     ...     case=CasePolicy.FOLD, origin=Origin(file="t.txt", line=1))
     >>> m = TermMatcher([e])
@@ -110,35 +101,17 @@ class TermMatcher:
     [(7, 14)]
     """
 
-    __slots__ = ("_automata", "_entries", "_keys", "_multiword")
+    __slots__ = ("_exact", "_exact_first", "_fold", "_fold_first")
 
     def __init__(self, entries: Iterable[TermEntry]) -> None:
-        keys: dict[CasePolicy, dict[str, TermEntry]] = {CasePolicy.EXACT: {}, CasePolicy.FOLD: {}}
-        kept: list[TermEntry] = []
-        for e in entries:
-            if e.key and e.key not in keys[e.case]:
-                keys[e.case][e.key] = e  # the first listing wins; lint reports the others
-                kept.append(e)
-        automata: dict[CasePolicy, ahocorasick.Automaton] = {}
-        for case, table in keys.items():
-            if table:
-                auto = ahocorasick.Automaton()
-                for key, e in table.items():
-                    auto.add_word(key, (len(key), e))
-                auto.make_automaton()
-                automata[case] = auto
-        self._keys = keys
-        self._automata = automata
-        self._entries = tuple(kept)
-        self._multiword = any(" " in k for table in keys.values() for k in table)
+        listed = [e for e in entries if e.key]
+        self._exact, self._exact_first = _tables(
+            [e for e in listed if e.case is not CasePolicy.FOLD]
+        )
+        self._fold, self._fold_first = _tables([e for e in listed if e.case is CasePolicy.FOLD])
 
     def __len__(self) -> int:
-        return len(self._entries)
-
-    @property
-    def entries(self) -> tuple[TermEntry, ...]:
-        """Every distinct term, in the order first listed."""
-        return self._entries
+        return len(self._exact) + len(self._fold)
 
     def lookup(self, text: str) -> TermEntry | None:
         """The term ``text`` (a token or phrase) is exactly, after NFC and, for fold terms,
@@ -151,14 +124,12 @@ class TermMatcher:
         (True, None)
         """
         spaced = collapse_spaces(text)
-        exact = self._keys[CasePolicy.EXACT]
-        if exact:
-            hit = exact.get(normalize_key(spaced, fold=False))
+        if self._exact:
+            hit = self._exact.get(normalize_key(spaced, fold=False))
             if hit is not None:
                 return hit
-        fold = self._keys[CasePolicy.FOLD]
-        if fold:
-            return fold.get(normalize_key(spaced, fold=True))
+        if self._fold:
+            return self._fold.get(normalize_key(spaced, fold=True))
         return None
 
     def find(self, text: str) -> tuple[TermHit, ...]:
@@ -166,48 +137,79 @@ class TermMatcher:
 
         Where hits overlap, the longest is kept (on a tie the earlier, then the exact).
         """
-        if not self._automata or not text:
+        if not text or not (self._exact or self._fold):
             return ()
-        view = _View(text, ())
-        if not text.isascii() and not unicodedata.is_normalized("NFC", text):
-            view = view.derive(*_nfc_with_map(text))
-        if self._multiword and _ODD_SPACE.search(view.text):
-            view = view.derive(*_spaces_with_map(view.text))
+        origin: list[int] | None = None
+        view = text
+        cut: re.Pattern[str] | regex.Pattern[str] = _ASCII_PIECE
+        if not text.isascii():
+            cut = _PIECE
+            if not unicodedata.is_normalized("NFC", text):
+                view, origin = _nfc_with_map(text)
+        spans: list[tuple[int, int]] | None = None
         found: list[tuple[int, int, int, TermEntry]] = []
-        exact = self._automata.get(CasePolicy.EXACT)
-        if exact is not None:
-            self._scan(exact, view, text, 0, found)
-        fold = self._automata.get(CasePolicy.FOLD)
-        if fold is not None:
-            folded = view.text.casefold()
-            if len(folded) == len(view.text):  # one character for one: same offsets
-                self._scan(fold, view.derive(folded, None), text, 1, found)
+        for rank, keys, firsts in (
+            (0, self._exact, self._exact_first),
+            (1, self._fold, self._fold_first),
+        ):
+            if not keys:
+                continue
+            if rank == 0:
+                words = cut.findall(view)
             else:
-                self._scan(fold, view.derive(*fold_with_map(view.text)), text, 1, found)
+                folded = view.casefold()
+                if len(folded) == len(view):  # one character for one: the same cut
+                    words = cut.findall(folded)
+                else:
+                    spans = spans or [m.span() for m in cut.finditer(view)]
+                    words = [view[s:e].casefold() for s, e in spans]
+            if firsts.keys().isdisjoint(words):
+                continue  # most texts: no piece can start a term
+            spans = spans or [m.span() for m in cut.finditer(view)]
+            _scan(words, spans, firsts, keys, rank, found)
         if not found:
             return ()
+        if origin is not None:
+            found = [(origin[s], origin[e], rank, entry) for s, e, rank, entry in found]
         return _longest_first(found)
 
-    @staticmethod
-    def _scan(
-        auto: ahocorasick.Automaton,
-        view: _View,
-        original: str,
-        rank: int,
-        out: list[tuple[int, int, int, TermEntry]],
-    ) -> None:
-        n = len(original)
-        for last, (length, entry) in auto.iter(view.text):
-            start = view.original(last + 1 - length)
-            end = view.original(last + 1)
-            if start >= end:
-                continue
-            term = entry.key
-            if start > 0 and is_word_char(term[0]) and is_word_char(original[start - 1]):
-                continue
-            if end < n and is_word_char(term[-1]) and is_word_char(original[end]):
-                continue
-            out.append((start, end, rank, entry))
+
+def _tables(entries: list[TermEntry]) -> tuple[dict[str, TermEntry], dict[str, int]]:
+    """key -> entry (the first listing wins; lint reports the others) and first piece ->
+    the most pieces a term starting with it has."""
+    keys: dict[str, TermEntry] = dict(
+        zip(reversed([str(e.key) for e in entries]), reversed(entries), strict=True)
+    )
+    firsts: dict[str, int] = dict.fromkeys([k for k in keys if k.isascii() and k.isalnum()], 1)
+    for key in keys:
+        if key.isascii() and key.isalnum():
+            continue
+        head, count = _first_piece(key)
+        if firsts.get(head, 0) < count:
+            firsts[head] = count
+    return keys, firsts
+
+
+def _scan(
+    words: list[str],
+    spans: list[tuple[int, int]],
+    firsts: dict[str, int],
+    keys: dict[str, TermEntry],
+    rank: int,
+    out: list[tuple[int, int, int, TermEntry]],
+) -> None:
+    n = len(words)
+    for i, word in enumerate(words):
+        most = firsts.get(word)
+        if most is None:
+            continue
+        phrase = word
+        for j in range(i, min(n, i + most)):
+            if j > i:
+                phrase += (" " if spans[j][0] > spans[j - 1][1] else "") + words[j]
+            entry = keys.get(phrase)
+            if entry is not None:
+                out.append((spans[i][0], spans[j][1], rank, entry))
 
 
 def _longest_first(found: list[tuple[int, int, int, TermEntry]]) -> tuple[TermHit, ...]:

@@ -119,3 +119,19 @@ def test_duplicate_keys_keep_the_first_listing() -> None:
 def test_no_terms_no_hits() -> None:
     assert TermMatcher([]).find("anything") == ()
     assert TermMatcher([]).lookup("anything") is None
+
+
+def test_terms_in_scripts_written_without_spaces_match_inside_a_run() -> None:
+    # Han and Kana are written without spaces between words: a term is found inside a run
+    terms = [entry("東京", EXACT), entry("タワー", EXACT)]
+    assert spans(terms, "東京タワーへ行く") == [(0, 2, "東京"), (2, 5, "タワー")]
+
+
+@pytest.mark.parametrize(
+    "text",
+    ["Bilge pump XR-220, C# x", "a  b\tc\x0bd\x0ce\r\nf", "no terms at all here", "x.y-z_w"],
+)
+def test_the_ascii_cut_agrees_with_the_unicode_cut(text: str) -> None:
+    from guard.ruleset.terms import _ASCII_PIECE, pieces
+
+    assert _ASCII_PIECE.findall(text) == pieces(text)
