@@ -27,6 +27,8 @@ from guard.io.read import ErrorRecord, InputRecord, Limits
 from guard.records import Report, Verdict
 
 CRASHED = "the worker process checking this record died"
+NO_WORKERS = "not checked: worker processes kept dying at once; run with one job to see why"
+_MAX_DEAD_STARTS = 3
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -174,8 +176,14 @@ def _work(jobs: list[Job | None]) -> list[Report | str | None]:
     return [None if j is None else _run(check, j) for j in jobs]
 
 
+_Results = list[Report | str | None]
+
+
 @dataclass(slots=True)
 class _Pool:
+    """A process pool that is replaced when a worker dies, and given up on when fresh
+    pools keep dying before they check anything (a worker that cannot even start)."""
+
     refs: tuple[str, ...]
     jobs: int
     factory: CheckerFactory
@@ -183,10 +191,16 @@ class _Pool:
     mp_context: str | None
     generation: int = 0
     executor: ProcessPoolExecutor | None = None
+    produced: bool = False  # has the current pool returned any result?
+    dead_starts: int = 0  # pools in a row that died before returning anything
+    usable: bool = True
 
     def _renew(self) -> None:
         if self.executor is not None:
             self.executor.shutdown(wait=False, cancel_futures=True)
+            self.executor = None
+        if not self.usable:
+            return
         method = self.mp_context or (
             "forkserver" if "forkserver" in multiprocessing.get_all_start_methods() else "spawn"
         )
@@ -197,9 +211,22 @@ class _Pool:
             initargs=(self.factory, self.refs),
         )
         self.generation += 1
+        self.produced = False
+
+    def _broken(self) -> None:
+        """The current pool died: start another, unless pools keep dying at once."""
+        if not self.produced:
+            self.dead_starts += 1
+            if self.dead_starts >= _MAX_DEAD_STARTS:
+                self.usable = False
+        self._renew()
+
+    def _got_result(self) -> None:
+        self.produced = True
+        self.dead_starts = 0
 
     def run(self, prepared: Iterator[_Prepared]) -> Iterator[Outcome]:
-        window: deque[tuple[list[_Prepared], Future[list[Report | str | None]], int]] = deque()
+        window: deque[tuple[list[_Prepared], Future[_Results] | None, int]] = deque()
         self._renew()
         try:
             exhausted = False
@@ -209,16 +236,12 @@ class _Pool:
                     if not chunk:
                         exhausted = True
                         break
-                    window.append((chunk, self._submit([j for _, j, _ in chunk]), self.generation))
+                    future = self._submit([j for _, j, _ in chunk])
+                    window.append((chunk, future, self.generation))
                 if not window:
                     return
                 chunk, future, generation = window.popleft()
-                try:
-                    results = future.result()
-                except BrokenProcessPool:
-                    if generation == self.generation:
-                        self._renew()
-                    results = self._one_by_one(chunk)
+                results = self._results(chunk, future, generation)
                 for (record, job, error), result in zip(chunk, results, strict=True):
                     if job is None or result is None:
                         yield Outcome(record=record, error=error)
@@ -228,27 +251,48 @@ class _Pool:
             if self.executor is not None:
                 self.executor.shutdown(wait=False, cancel_futures=True)
 
-    def _submit(self, jobs: list[Job | None]) -> Future[list[Report | str | None]]:
-        assert self.executor is not None
-        try:
-            return self.executor.submit(_work, jobs)
-        except BrokenProcessPool:
-            self._renew()
-            assert self.executor is not None
-            return self.executor.submit(_work, jobs)
+    def _results(
+        self, chunk: list[_Prepared], future: Future[_Results] | None, generation: int
+    ) -> _Results:
+        if future is not None:
+            try:
+                results = future.result()
+            except BrokenProcessPool:
+                if generation == self.generation:
+                    self._broken()
+            else:
+                self._got_result()
+                return results
+        return self._one_by_one(chunk)
 
-    def _one_by_one(self, chunk: list[_Prepared]) -> list[Report | str | None]:
+    def _submit(self, jobs: list[Job | None]) -> Future[_Results] | None:
+        for _ in range(2):
+            if self.executor is None:
+                return None
+            try:
+                return self.executor.submit(_work, jobs)
+            except BrokenProcessPool:
+                self._broken()
+        return None
+
+    def _one_by_one(self, chunk: list[_Prepared]) -> _Results:
         """Check a chunk record by record, so that a record that kills a worker is named."""
-        out: list[Report | str | None] = []
+        out: _Results = []
         for _, job, _ in chunk:
             if job is None:
                 out.append(None)
                 continue
+            future = self._submit([job])
+            if future is None:
+                out.append(NO_WORKERS)
+                continue
             try:
-                out.append(self._submit([job]).result()[0])
+                out.append(future.result()[0])
             except BrokenProcessPool:
                 out.append(CRASHED)
-                self._renew()
+                self._broken()
+            else:
+                self._got_result()
         return out
 
 

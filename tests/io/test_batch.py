@@ -7,7 +7,7 @@ import os
 
 import pytest
 
-from guard.batch import CRASHED, Checker, Job, Outcome, Summary, check_records
+from guard.batch import CRASHED, NO_WORKERS, Checker, Job, Outcome, Summary, check_records
 from guard.io.read import ErrorRecord, InputRecord, Limits, read_records
 from guard.records import Report, Verdict
 
@@ -129,3 +129,25 @@ def test_several_jobs_give_the_same_outcomes_as_one(jobs: int) -> None:
     one = list(check_records(records(lines), ["base"], jobs=1))
     many = list(check_records(records(lines), ["base"], jobs=jobs, chunk_size=3))
     assert many == one
+
+
+def failing_factory(refs: tuple[str, ...]) -> Checker:
+    """A checker that cannot be built (say, the worker cannot load the ruleset)."""
+    raise OSError("cannot load")
+
+
+def test_workers_that_cannot_start_give_error_outcomes_not_an_endless_restart() -> None:
+    lines = [LINES[1]] * 10
+    outcomes = list(
+        check_records(
+            records(lines),
+            [],
+            jobs=2,
+            checker_factory=failing_factory,
+            chunk_size=2,
+            mp_context="fork",
+        )
+    )
+    assert len(outcomes) == 10
+    assert {o.error for o in outcomes} <= {CRASHED, NO_WORKERS}
+    assert outcomes[-1].error == NO_WORKERS
