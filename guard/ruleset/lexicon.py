@@ -13,9 +13,10 @@ cache is keyed by wordfreq's version, the language and a hash of wordfreq's data
 is checked by a hash of its own body, and is used only in a folder the user owns that
 nobody else can write. When any check fails, the lexicon is built from wordfreq directly.
 
-Limits, said plainly: Chinese and Japanese words are looked up as given (wordfreq's own
+Limits, said plainly: Chinese and Japanese words are looked up whole (wordfreq's own
 segmenters are optional packages we do not call), so a lookup must be one dictionary
-word in simplified Chinese; numbers are not smashed to digit shapes as wordfreq does.
+word; Traditional Chinese is mapped to Simplified with wordfreq's own character map, as
+wordfreq does. Numbers are not smashed to digit shapes as wordfreq does.
 """
 
 from __future__ import annotations
@@ -77,7 +78,10 @@ class Lexicon:
             return word.lower()
         from wordfreq.preprocess import preprocess_text
 
-        return str(preprocess_text(word, self._language))
+        key = str(preprocess_text(word, self._language))
+        if self.lang == "zh":
+            key = key.translate(_simplified_map())
+        return key
 
     def _band(self, word: str) -> int | None:
         key = self._key(word)
@@ -94,6 +98,27 @@ class Lexicon:
     def known(self, word: str) -> bool:
         """True when wordfreq lists ``word`` in this language at all."""
         return self._band(word) is not None
+
+
+@functools.cache
+def _simplified_map() -> dict[int, str]:
+    """wordfreq's Traditional -> Simplified Chinese character map, read from its data file.
+
+    wordfreq looks Chinese words up in simplified form, but its own module for this
+    imports an optional segmenter (jieba); the map itself is plain data. Empty when the
+    file cannot be read, so that lookups fall back to the text as given.
+    """
+    import gzip
+
+    import msgpack  # type: ignore[import-untyped]  # ships no type information
+    from wordfreq.util import data_path
+
+    try:
+        with gzip.open(data_path("_chinese_mapping.msgpack.gz")) as fh:
+            loaded = msgpack.load(fh, raw=False, strict_map_key=False)
+    except (OSError, ValueError, TypeError):
+        return {}
+    return {int(k): str(v) for k, v in loaded.items()} if isinstance(loaded, dict) else {}
 
 
 def _language(lang: str) -> Language:

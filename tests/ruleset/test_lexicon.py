@@ -112,3 +112,11 @@ def test_a_lexicon_is_read_only_data() -> None:
     assert (lex.zipf("ALPHA"), lex.zipf("beta"), lex.zipf("gamma")) == (5.0, 4.0, 0.0)
     with pytest.raises(AttributeError):
         lex.extra = 1  # type: ignore[attr-defined]
+
+
+def test_traditional_chinese_is_looked_up_in_simplified_form() -> None:
+    # wordfreq's chinese.simplify_chinese docstring: Chinese is converted character by
+    # character to Simplified "for the purpose of looking up word frequencies"
+    zh = get_lexicon("zh-Hant")
+    assert zh is not None and zh.lang == "zh"
+    assert zh.zipf("電腦") == zh.zipf("电脑") > 0.0
