@@ -22,6 +22,7 @@ token other than whitespace crosses the start of a whitespace run.
 
 from __future__ import annotations
 
+import unicodedata
 from collections.abc import Iterable, Sequence
 
 import regex
@@ -39,6 +40,9 @@ _CUT_BACK = regex.compile(r"(?r)(?<=[^\s\p{GCB=Prepend}])(?=\s)")
 _SPACE = regex.compile(r"\s+")
 _SPACE_OR_HYPHEN = regex.compile(r"[\s\p{Pd}]+")
 _PUNCT_OR_SPACE = regex.compile(r"[\p{P}\s]+")
+# Combining Diacritical Marks and its Extended and Supplement blocks, and the marks for
+# symbols and half marks: accents, not the vowel signs of abugidas.
+_DIACRITICS = regex.compile(r"[\u0300-\u036f\u1ab0-\u1aff\u1dc0-\u1dff\u20d0-\u20ff\ufe20-\ufe2f]+")
 
 _Span = tuple[int, int, TokenKind]
 
@@ -93,7 +97,7 @@ def _classify(
         kind = RewriteKind.REPLACE
         n_old = sum(1 for s in old_spans if s[2] is not TokenKind.SPACE)
         n_new = sum(1 for s in new_spans if s[2] is not TokenKind.SPACE)
-        if {n_old, n_new} != {1} and min(n_old, n_new) == 1 and _squash(old) == _squash(new):
+        if 1 in (n_old, n_new) and max(n_old, n_new) > 1 and _squash(old) == _squash(new):
             kind = RewriteKind.SPLIT if n_old == 1 else RewriteKind.JOIN
     return kind, _refinement(old, new)
 
@@ -102,13 +106,24 @@ def _refinement(old: str, new: str) -> Refinement | None:
     """The one kind of difference ``old`` and ``new`` differ by, if only one."""
     if old.casefold() == new.casefold():
         return Refinement.CASE
-    if strip_accents(old) == strip_accents(new):
+    if strip_accents(old) == strip_accents(new) and _diacritics_only(old, new):
         return Refinement.ACCENTS
     if _SPACE.sub("", old) == _SPACE.sub("", new):
         return Refinement.SPACING
     if _PUNCT_OR_SPACE.sub("", old) == _PUNCT_OR_SPACE.sub("", new):
         return Refinement.PUNCTUATION
     return None
+
+
+def _diacritics_only(old: str, new: str) -> bool:
+    """Whether only generic diacritics (the Combining Diacritical Marks blocks) differ.
+
+    strip_accents drops every nonspacing mark, and in Indic, Thai or Hebrew text those
+    marks are vowels and tones, not accents: changing them changes the word.
+    """
+    return _DIACRITICS.sub("", unicodedata.normalize("NFD", old)) == _DIACRITICS.sub(
+        "", unicodedata.normalize("NFD", new)
+    )
 
 
 def _squash(text: str) -> str:

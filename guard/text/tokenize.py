@@ -22,8 +22,12 @@ What a token is:
 * In scripts written without spaces between words (Han, Hiragana, Katakana, Thai,
   Lao, Khmer, Myanmar, Tai Tham) every grapheme cluster is its own word token, so
   alignment there works grapheme by grapheme.
-* Whitespace runs are SPACE tokens; any other character is a PUNCT or SYMBOL token of
-  one grapheme cluster.
+* Identifiers by shape: camelCase needs two lower-case letters before the first
+  capital, PascalCase a first part of three letters or more (``PumpController``,
+  ``HTTPServer``), so ``iPhone`` or ``McName`` stay words (their shape still says
+  internal capital, see :mod:`guard.text.shape`).
+* Whitespace runs are SPACE tokens; any other character is a PUNCT, SYMBOL or (for
+  ½, ², Ⅻ) NUMBER token of one grapheme cluster.
 
 No token ends inside a grapheme cluster: combining marks, emoji ZWJ sequences and
 flags stay with their base.
@@ -100,6 +104,7 @@ _HAS_DIGIT = regex.compile(r"\d")
 _HAS_LETTER = regex.compile(r"\p{L}")
 _CAMEL = regex.compile(r"\p{Ll}{2,}\p{Lu}|\p{Lu}\p{Ll}{2,}\p{Lu}\p{Ll}|\p{Lu}{2,}\p{Ll}{2,}")
 _PUNCT = regex.compile(r"\p{P}")
+_NUMERIC = regex.compile(r"\p{N}")
 
 _GROUP_KIND = {
     "url": TokenKind.URL,
@@ -125,14 +130,14 @@ def _chunk_kind(chunk: str) -> TokenKind:
     if chunk.endswith("()"):
         return TokenKind.IDENTIFIER
     has_letter = _HAS_LETTER.search(chunk) is not None
+    if "_" in chunk and has_letter:
+        return TokenKind.IDENTIFIER
     if _HAS_DIGIT.search(chunk) is not None:
         if _NUMBER.fullmatch(chunk) is not None or not has_letter:
             return TokenKind.NUMBER
-        return TokenKind.IDENTIFIER if "_" in chunk.strip("_") else TokenKind.CODE
+        return TokenKind.CODE
     if not has_letter:
         return TokenKind.PUNCT if chunk.strip("_") == "" else TokenKind.SYMBOL
-    if "_" in chunk:
-        return TokenKind.IDENTIFIER
     if "." in chunk:
         # os.path.join, config.yaml are names; e.g, U.S are abbreviations
         parts = chunk.split(".")
@@ -150,7 +155,10 @@ def _plain_kind(word: str) -> TokenKind:
 
 
 def _other_kind(cluster: str) -> TokenKind:
-    return TokenKind.PUNCT if _PUNCT.match(cluster) else TokenKind.SYMBOL
+    if _PUNCT.match(cluster):
+        return TokenKind.PUNCT
+    # numeric characters that are not decimal digits: ½, ², Ⅻ
+    return TokenKind.NUMBER if _NUMERIC.match(cluster) else TokenKind.SYMBOL
 
 
 _CLASSIFY = {"word": _chunk_kind, "chunk": _chunk_kind, "other": _other_kind}

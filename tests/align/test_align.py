@@ -63,6 +63,14 @@ CASES = [
         "un cafe noir", "un café noir", [("cafe", "café", R.REPLACE, F.ACCENTS)], id="accents-only"
     ),
     pytest.param(
+        "Tieng Viet",
+        "Tiếng Việt",
+        [("Tieng", "Tiếng", R.REPLACE, F.ACCENTS), ("Viet", "Việt", R.REPLACE, F.ACCENTS)],
+        id="accents-vietnamese-stacked",
+    ),
+    # Thai tone marks are nonspacing marks but not accents: the word changes
+    pytest.param("สวัสดีคะ", "สวัสดีค่ะ", [("ค", "ค่", R.REPLACE, None)], id="thai-tone-mark"),
+    pytest.param(
         "two  spaces", "two spaces", [("  ", " ", R.REPLACE, F.SPACING)], id="spacing-only"
     ),
     pytest.param("a,b", "a, b", [("", " ", R.INSERT, F.SPACING)], id="insert-space"),
