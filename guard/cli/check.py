@@ -7,6 +7,7 @@ are in guard.cli.common. A one-line tally goes to stderr at the end.
 
 from __future__ import annotations
 
+import os
 import sys
 
 import click
@@ -79,6 +80,8 @@ def command(
                 color=fmt == "text" and to_terminal,
                 rule_docs=common.rule_docs(),
                 tool_version=common.version(),
+                title="guard report: "
+                + ", ".join("stdin" if p == "-" else os.path.basename(p) for p in paths),
             )
             reporter = REPORTERS[fmt](stream, options)
             reporter.start()

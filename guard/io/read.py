@@ -347,25 +347,23 @@ def _depth_over(value: object, limit: int) -> bool:
     return False
 
 
-def _bad_strings(value: object, path: str) -> str | None:
-    """Why a string somewhere in ``value`` cannot be carried through, or None."""
-    stack: list[tuple[object, str]] = [(value, path)]
+def _bad_strings(value: object) -> str | None:
+    """Why a string somewhere in a record cannot be carried through, or None."""
+    stack: list[tuple[object, str]] = [(value, "")]
     while stack:
-        v, where = stack.pop()
+        v, path = stack.pop()
         if isinstance(v, str):
-            m = _SURROGATE.search(v)
-            if m:
-                return f"lone surrogate U+{ord(m.group()):04X} in {where}"
-            m = _CONTROL.search(v)
-            if m:
-                return f"control character U+{ord(m.group()):04X} in {where}"
+            for pattern, what in ((_SURROGATE, "lone surrogate"), (_CONTROL, "control character")):
+                m = pattern.search(v)
+                if m:
+                    return f"{what} U+{ord(m.group()):04X} in field {path!r}"
         elif isinstance(v, dict):
             for k, x in v.items():
                 if isinstance(k, str) and (_SURROGATE.search(k) or _CONTROL.search(k)):
-                    return f"bad character in a field name in {where}"
-                stack.append((x, f"{where}.{k}" if where != "record" else f"field {k!r}"))
+                    return f"bad character in a field name in {path or 'the record'}"
+                stack.append((x, f"{path}.{k}" if path else str(k)))
         elif isinstance(v, list):
-            stack.extend((x, f"{where}[{i}]") for i, x in enumerate(v))
+            stack.extend((x, f"{path}[{i}]") for i, x in enumerate(v))
     return None
 
 
@@ -407,7 +405,7 @@ def _from_mapping(
         return err(f"not a JSON object (got {_json_kind(value)})")
     if _depth_over(value, lim.max_depth):
         return err(f"JSON nested deeper than {lim.max_depth} levels")
-    bad = _bad_strings(value, "record")
+    bad = _bad_strings(value)
     if bad:
         return err(bad)
     return _build(value, display, number, names, err, table=False)
@@ -620,7 +618,7 @@ def _table(
         if len(cells) != len(header):
             return err(number, f"row has {len(cells)} cell(s), the header has {len(header)}", text)
         fields: dict[str, object] = dict(zip(header, cells, strict=True))
-        bad = _bad_strings(fields, "record")
+        bad = _bad_strings(fields)
         if bad:
             return err(number, bad, text)
         return _build(fields, display, number, names, lambda r: err(number, r, text), table=True)

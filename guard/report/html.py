@@ -78,6 +78,12 @@ _JS = """
 })();
 """.strip()
 
+CAVEAT = (
+    "guard lowers the risk that a speller's rewrite changes what a text means; it does not "
+    "remove it. Term lists are never complete. For medical, legal or safety text, local rules "
+    "and licensed professionals decide."
+)
+
 _COLOURS = {"veto": "#b3261e", "flag": "#d99a00", "accept": "#3a8a3a", "hits": "#44679e"}
 
 
@@ -258,6 +264,7 @@ class HtmlReporter(Reporter):
             for line in self._errors:
                 w(line)
             w("</tbody></table>\n</section>\n")
+        w(f'<footer><p class="empty">{_esc(CAVEAT)}</p></footer>\n')
         w(f"<script>{_JS}</script>\n</body>\n</html>\n")
         self._rows.close()
         self._errors.close()

@@ -43,7 +43,7 @@ def reasons(records: list[Record]) -> list[str | None]:
         (b'{"source": "a\\u0000b", "proposal": "x"}', "control character U+0000 in field 'source'"),
         (
             b'{"source": "a", "proposal": "b", "n": {"x": "\\u001b[31m"}}',
-            "control character U+001B in field 'n'.x",
+            "control character U+001B in field 'n.x'",
         ),
         (
             b'{"source": "a\x00b", "proposal": "x"}',
