@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import difflib
 import importlib
+import os
 import re
 import tomllib
 import unicodedata
@@ -79,6 +80,7 @@ class Limits:
     max_list_lines: int = 2_000_000  # lines in one term, pair or critical list
     max_term_chars: int = 512  # characters in one term or one side of a pair
     max_toml_bytes: int = 8_000_000  # size of one ruleset TOML file
+    max_list_bytes: int = 256_000_000  # size of one list file
     max_patterns: int = 10_000
 
 
@@ -321,20 +323,11 @@ class _FileReader:
     # -- the file
 
     def read(self) -> _Layer | None:
-        try:
-            data = self.path.read_bytes()
-        except FileNotFoundError:
-            self.p.error(self.file, "ruleset file not found")
-            return None
-        except OSError as e:
-            self.p.error(self.file, f"cannot read ruleset file: {e.strerror or e}")
+        data = _read_bounded(self.path, self.limits.max_toml_bytes)
+        if isinstance(data, str):
+            self.p.error(self.file, f"ruleset file {data}")
             return None
         self.layer.files.append(self.file)
-        if len(data) > self.limits.max_toml_bytes:
-            self.p.error(
-                self.file, f"ruleset file is larger than {self.limits.max_toml_bytes} bytes"
-            )
-            return None
         try:
             text = data.decode("utf-8")
         except UnicodeDecodeError as e:
@@ -348,6 +341,9 @@ class _FileReader:
         except tomllib.TOMLDecodeError as e:
             message, at = _toml_error(str(e), text)
             self.p.error(self.file, f"TOML syntax: {message}", at)
+            return None
+        except RecursionError:
+            self.p.error(self.file, "TOML nested too deeply to read")
             return None
         self.lines = KeyLines(text)
         self.layer.lines = self.lines
@@ -489,13 +485,9 @@ class _FileReader:
     def list_lines(self, path: Path, key: str) -> Iterator[tuple[int, str]]:
         """(line number, content) of every non-blank, non-comment line of a list file."""
         file = str(path)
-        try:
-            data = path.read_bytes()
-        except FileNotFoundError:
-            self.err(key, f"list file not found: {path}")
-            return
-        except OSError as e:
-            self.err(key, f"cannot read list file {path}: {e.strerror or e}")
+        data = _read_bounded(path, self.limits.max_list_bytes)
+        if isinstance(data, str):
+            self.err(key, f"list file {path} {data}")
             return
         self.layer.files.append(file)
         if data.count(b"\n") >= self.limits.max_list_lines:
@@ -849,6 +841,23 @@ def _unknown_option(rule: Rule, opt: str) -> str:
     known = ", ".join(["action", *rule.options])
     hint = _suggest(opt, list(rule.options))
     return f"rule '{rule.name}' has no option '{opt}'{hint}; it has: {known}"
+
+
+def _read_bounded(path: Path, limit: int) -> bytes | str:
+    """The bytes of ``path``, or what is wrong ("not found", "is larger than ...")."""
+    try:
+        with path.open("rb") as fh:
+            size = os.fstat(fh.fileno()).st_size
+            if size > limit:
+                return f"is larger than {limit} bytes (the limit)"
+            data = fh.read(limit + 1)
+    except FileNotFoundError:
+        return "not found"
+    except OSError as e:
+        return f"cannot be read: {e.strerror or e}"
+    if len(data) > limit:
+        return f"is larger than {limit} bytes (the limit)"
+    return data
 
 
 def _byte_position(data: bytes, offset: int) -> tuple[int, int]:

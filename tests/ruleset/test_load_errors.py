@@ -10,7 +10,7 @@ import pytest
 
 from guard.errors import Problem, RulesetError
 from guard.rules.base import Rule
-from guard.ruleset.load import load_sources
+from guard.ruleset.load import Limits, load_sources
 
 MAIN = """\
 [ruleset]
@@ -75,7 +75,7 @@ EXPECTED = [
     ("ruleset.toml", 3, "ruleset.extends[1]", "'../../outside.toml' leaves the ruleset's folder"),
     ("ruleset.toml", 4, "ruleset.languages[1]", "'english' is not a BCP 47 language tag"),
     ("ruleset.toml", 5, "ruleset.colour", "unknown key 'colour'"),
-    ("ruleset.toml", 8, "terms[0].file", "list file not found"),
+    ("ruleset.toml", 8, "terms[0].file", "missing.txt not found"),
     ("terms/latin1.txt", 2, None, "not valid UTF-8: byte 0xe9 at column 4"),
     ("ruleset.toml", 12, "terms[1].case", "case must be 'exact' or 'fold'"),
     ("ruleset.toml", 15, "terms[2].file", "'../../etc/passwd' leaves the ruleset's folder"),
@@ -127,3 +127,41 @@ def test_every_error_is_reported_once_with_file_line_and_key(
         assert matches, f"missing {file}:{line} [{key}] {fragment!r}; got {sorted(seen, key=str)}"
     assert len(got) == len(EXPECTED), "\n".join(str(p) for p in got)
     assert all(p.severity == "error" for p in got)
+
+
+@pytest.mark.parametrize(
+    ("limits", "message"),
+    [
+        pytest.param(Limits(max_list_lines=3), "list has more than 3 lines", id="lines"),
+        pytest.param(Limits(max_list_bytes=10), "is larger than 10 bytes", id="bytes"),
+        pytest.param(Limits(max_term_chars=4), "term longer than 4 characters", id="term"),
+        pytest.param(Limits(max_toml_bytes=20), "is larger than 20 bytes", id="toml"),
+    ],
+)
+def test_size_limits_are_errors(
+    write: Callable[[dict[str, str | bytes]], Path],
+    registry: Mapping[str, Rule],
+    limits: Limits,
+    message: str,
+) -> None:
+    root = write(
+        {
+            "ruleset.toml": '[ruleset]\nname = "r"\nextends = []\n[[terms]]\nfile = "t.txt"\n',
+            "t.txt": "alpha\nbe\nga\nde\n",
+        }
+    )
+    with pytest.raises(RulesetError) as info:
+        load_sources([root / "ruleset.toml"], registry=registry, limits=limits)
+    (problem,) = info.value.problems
+    assert message in problem.message
+
+
+def test_a_toml_syntax_error_in_the_named_file_has_its_line(
+    write: Callable[[dict[str, str | bytes]], Path], registry: Mapping[str, Rule]
+) -> None:
+    root = write({"r.toml": '[ruleset]\nname = "r"\n\n[rules.edit-budget\naction = "flag"\n'})
+    with pytest.raises(RulesetError) as info:
+        load_sources([root / "r.toml"], registry=registry)
+    (problem,) = info.value.problems
+    assert (problem.file, problem.line) == (str(root / "r.toml"), 4)
+    assert problem.message.startswith("TOML syntax: ")
