@@ -20,11 +20,17 @@ RULESET_FILE = "ruleset.toml"
 
 
 def rulesets_dir() -> Path:
-    """The folder of bundled rulesets: ``$GUARD_RULESETS_DIR``, else ``<repo>/rulesets``."""
+    """The folder of bundled rulesets: ``$GUARD_RULESETS_DIR``, else ``<repo>/rulesets``
+    in a source checkout, else the copy an installed wheel carries (``guard/_bundled``,
+    mapped from ``rulesets/`` in pyproject.toml)."""
     override = os.environ.get(ENV_DIR)
     if override:
         return Path(override).expanduser().resolve()
-    return Path(__file__).resolve().parents[2] / "rulesets"
+    package = Path(__file__).resolve().parents[1]
+    checkout = package.parent / "rulesets"
+    if (checkout / "base" / RULESET_FILE).is_file():
+        return checkout
+    return package / "_bundled"
 
 
 def is_bundled_name(ref: str | Path) -> bool:
