@@ -60,7 +60,9 @@ def compile_ruleset(resolved: ResolvedRuleset) -> CompiledRuleset:
         languages=resolved.languages,
         other_languages=resolved.other_languages,
         rules=resolved.rules,
-        terms=resolved.terms,
+        # The table is a Sequence[TermEntry] that makes entries on demand; model.py types
+        # this field as a tuple, which would make every entry up front (see the note there).
+        terms=resolved.terms,  # type: ignore[arg-type]
         patterns=resolved.patterns,
         blocked=_pair_table(resolved.blocked),
         allowed=_pair_table(resolved.allowed),

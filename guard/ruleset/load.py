@@ -21,6 +21,7 @@ import os
 import re
 import tomllib
 import unicodedata
+from array import array
 from collections.abc import Callable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -47,8 +48,8 @@ from guard.ruleset.model import (
     Settings,
     TermEntry,
 )
-from guard.ruleset.terms import collapse_spaces
-from guard.text.normalize import hidden_characters, normalize_key
+from guard.ruleset.terms import TermTable, collapse_spaces
+from guard.text.normalize import NormalizedText, hidden_characters, normalize_key
 
 if TYPE_CHECKING:
     from guard.rules.base import OptionSpec, Rule
@@ -100,7 +101,7 @@ class ResolvedRuleset:
     languages: tuple[str, ...]
     other_languages: tuple[str, ...]
     rules: Mapping[str, RuleSettings]
-    terms: tuple[TermEntry, ...]
+    terms: TermTable  # a Sequence[TermEntry] whose entries are made when asked for
     patterns: tuple[PatternEntry, ...]
     blocked: tuple[PairEntry, ...]
     allowed: tuple[PairEntry, ...]
@@ -226,7 +227,7 @@ class _Layer:
     languages: tuple[str, ...] | None = None
     other_languages: tuple[str, ...] | None = None
     meta_origin: dict[str, Origin] = field(default_factory=dict)
-    terms: list[TermEntry] = field(default_factory=list)
+    terms: list[TermTable] = field(default_factory=list)
     patterns: list[PatternEntry] = field(default_factory=list)
     blocked: list[PairEntry] = field(default_factory=list)
     allowed: list[PairEntry] = field(default_factory=list)
@@ -458,29 +459,25 @@ class _FileReader:
             path = self.contained(f"{key}.file", rel)
             if path is None:
                 continue
-            self.layer.terms.extend(self.read_terms(path, f"{key}.file", kind, case))
+            self.layer.terms.append(self.read_terms(path, f"{key}.file", kind, case))
 
-    def read_terms(self, path: Path, key: str, kind: str, case: CasePolicy) -> list[TermEntry]:
+    def read_terms(self, path: Path, key: str, kind: str, case: CasePolicy) -> TermTable:
         fold = case is CasePolicy.FOLD
         file = str(path)
         limit = self.limits.max_term_chars
-        out: list[TermEntry] = []
+        terms: list[str] = []
+        keys: list[NormalizedText] = []
+        lines = array("L")
         for n, text in self.list_lines(path, key):
             if len(text) > limit:
                 self.p.error(file, f"term longer than {limit} characters", n)
                 continue
             if not text.isascii() or "  " in text or "\t" in text:
                 text = collapse_spaces(text)
-            out.append(
-                TermEntry(
-                    term=text,
-                    key=normalize_key(text, fold=fold),
-                    kind=kind,
-                    case=case,
-                    origin=Origin(file=file, line=n),
-                )
-            )
-        return out
+            terms.append(text)
+            keys.append(normalize_key(text, fold=fold))
+            lines.append(n)
+        return TermTable(terms, keys, lines, [(0, file, kind, case)])
 
     def list_lines(self, path: Path, key: str) -> Iterator[tuple[int, str]]:
         """(line number, content) of every non-blank, non-comment line of a list file."""
@@ -1269,7 +1266,7 @@ def resolve(
     meta: dict[str, Settings] = {}
     languages: tuple[str, ...] = ()
     other: tuple[str, ...] = ()
-    terms: list[TermEntry] = []
+    terms: list[TermTable] = []
     patterns: dict[str, PatternEntry] = {}
     blocked: list[PairEntry] = []
     allowed: list[PairEntry] = []
@@ -1320,7 +1317,7 @@ def resolve(
         languages=languages,
         other_languages=other,
         rules=MappingProxyType(_settings(registry, merged)),
-        terms=tuple(terms),
+        terms=TermTable.join(terms),
         patterns=tuple(patterns.values()),
         blocked=tuple(blocked),
         allowed=tuple(allowed),

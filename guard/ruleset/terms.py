@@ -26,12 +26,16 @@ from __future__ import annotations
 
 import re
 import unicodedata
-from collections.abc import Iterable
+from array import array
+from bisect import bisect_right
+from collections.abc import Iterable, Iterator, Sequence
+from typing import overload
 
 import regex
 
+from guard.records import Origin
 from guard.ruleset.model import CasePolicy, TermEntry, TermHit
-from guard.text.normalize import normalize_key
+from guard.text.normalize import NormalizedText, normalize_key
 
 _UNSPACED = r"\p{Han}\p{Hiragana}\p{Katakana}\p{Thai}\p{Lao}\p{Khmer}\p{Myanmar}"
 _PIECE = regex.compile(
@@ -90,6 +94,116 @@ def _nfc_with_map(text: str) -> tuple[str, list[int]]:
     return "".join(parts), origin
 
 
+class TermTable(Sequence[TermEntry]):
+    """Protected terms as columns, with a ``TermEntry`` made only when one is asked for.
+
+    A ruleset may list a million terms; two Python objects per term (the entry and its
+    origin) would cost seconds to create and hundreds of megabytes to hold, while a check
+    only ever looks at the few terms it finds. So the loader fills columns (term, key,
+    line) and runs of rows that share a list file, kind and case policy; iterating or
+    indexing makes entries on the fly (equal, not identical, from one call to the next).
+    Read-only once built.
+
+    >>> t = TermTable.of([])
+    >>> len(t), list(t)
+    (0, [])
+    """
+
+    __slots__ = ("_keys", "_lines", "_runs", "_starts", "_terms")
+
+    def __init__(
+        self,
+        terms: list[str],
+        keys: list[NormalizedText],
+        lines: array[int],
+        runs: list[tuple[int, str, str, CasePolicy]],
+    ) -> None:
+        if not len(terms) == len(keys) == len(lines):
+            raise ValueError("term columns differ in length")
+        self._terms = terms
+        self._keys = keys
+        self._lines = lines  # 0: no line
+        self._runs = runs  # (first row, list file, kind, case), by first row
+        self._starts = [r[0] for r in runs]
+
+    @classmethod
+    def of(cls, entries: Iterable[TermEntry]) -> TermTable:
+        """A table of entries made elsewhere (tests, or terms that come from no file)."""
+        terms: list[str] = []
+        keys: list[NormalizedText] = []
+        lines = array("L")
+        runs: list[tuple[int, str, str, CasePolicy]] = []
+        for e in entries:
+            if not runs or runs[-1][1:] != (e.origin.file, e.kind, e.case):
+                runs.append((len(terms), e.origin.file, e.kind, e.case))
+            terms.append(e.term)
+            keys.append(e.key)
+            lines.append(e.origin.line or 0)
+        return cls(terms, keys, lines, runs)
+
+    @classmethod
+    def join(cls, tables: Iterable[TermTable]) -> TermTable:
+        """One table holding the rows of ``tables`` in order."""
+        terms: list[str] = []
+        keys: list[NormalizedText] = []
+        lines = array("L")
+        runs: list[tuple[int, str, str, CasePolicy]] = []
+        for t in tables:
+            offset = len(terms)
+            runs.extend((start + offset, file, kind, case) for start, file, kind, case in t._runs)
+            terms.extend(t._terms)
+            keys.extend(t._keys)
+            lines.extend(t._lines)
+        return cls(terms, keys, lines, runs)
+
+    def __len__(self) -> int:
+        return len(self._terms)
+
+    @overload
+    def __getitem__(self, index: int) -> TermEntry: ...
+
+    @overload
+    def __getitem__(self, index: slice) -> list[TermEntry]: ...
+
+    def __getitem__(self, index: int | slice) -> TermEntry | list[TermEntry]:
+        if isinstance(index, slice):
+            return [self.entry(i) for i in range(*index.indices(len(self)))]
+        if index < 0:
+            index += len(self)
+        if not 0 <= index < len(self):
+            raise IndexError("term index out of range")
+        return self.entry(index)
+
+    def __iter__(self) -> Iterator[TermEntry]:
+        for i in range(len(self)):
+            yield self.entry(i)
+
+    def _run(self, row: int) -> tuple[int, str, str, CasePolicy]:
+        return self._runs[bisect_right(self._starts, row) - 1]
+
+    def entry(self, row: int) -> TermEntry:
+        """The entry of ``row`` (0 <= row < len)."""
+        _, file, kind, case = self._run(row)
+        line = self._lines[row]
+        return TermEntry(
+            term=self._terms[row],
+            key=self._keys[row],
+            kind=kind,
+            case=case,
+            origin=Origin(file=file, line=line or None),
+        )
+
+    def rows(self) -> Iterator[tuple[int, int, CasePolicy]]:
+        """(first row, end row, case) of each run of rows sharing a list and policy."""
+        ends = [*self._starts[1:], len(self)] if self._runs else []
+        for (start, _, _, case), end in zip(self._runs, ends, strict=True):
+            if end > start:
+                yield start, end, case
+
+    def keys_of(self, start: int, end: int) -> list[NormalizedText]:
+        return self._keys[start:end]
+
+
 class TermMatcher:
     """Protected terms of a ruleset, compiled for matching (read-only once built).
 
@@ -101,14 +215,27 @@ class TermMatcher:
     [(7, 14)]
     """
 
-    __slots__ = ("_exact", "_exact_first", "_fold", "_fold_first")
+    __slots__ = ("_exact", "_exact_first", "_fold", "_fold_first", "_table")
 
-    def __init__(self, entries: Iterable[TermEntry]) -> None:
-        listed = [e for e in entries if e.key]
-        self._exact, self._exact_first = _tables(
-            [e for e in listed if e.case is not CasePolicy.FOLD]
-        )
-        self._fold, self._fold_first = _tables([e for e in listed if e.case is CasePolicy.FOLD])
+    def __init__(self, terms: TermTable | Iterable[TermEntry]) -> None:
+        table = terms if isinstance(terms, TermTable) else TermTable.of(terms)
+        exact: dict[str, int] = {}
+        fold: dict[str, int] = {}
+        for start, end, case in table.rows():
+            keys = table.keys_of(start, end)
+            # Later rows first, so that within a run the first listing wins; earlier runs
+            # win over later ones through the merge order. Lint reports the repeats.
+            run: dict[str, int] = dict(
+                zip(reversed(keys), range(end - 1, start - 1, -1), strict=True)
+            )
+            run.pop("", None)
+            if case is CasePolicy.FOLD:
+                fold = run | fold
+            else:
+                exact = run | exact
+        self._table = table
+        self._exact, self._exact_first = exact, _firsts(exact)
+        self._fold, self._fold_first = fold, _firsts(fold)
 
     def __len__(self) -> int:
         return len(self._exact) + len(self._fold)
@@ -120,17 +247,16 @@ class TermMatcher:
         >>> from guard.records import Origin
         >>> e = TermEntry(term="XR-220", key=normalize_key("XR-220", fold=False), kind="code",
         ...     case=CasePolicy.EXACT, origin=Origin(file="t.txt", line=3))
-        >>> TermMatcher([e]).lookup("XR-220") is e, TermMatcher([e]).lookup("xr-220")
+        >>> TermMatcher([e]).lookup("XR-220") == e, TermMatcher([e]).lookup("xr-220")
         (True, None)
         """
         spaced = collapse_spaces(text)
+        row: int | None = None
         if self._exact:
-            hit = self._exact.get(normalize_key(spaced, fold=False))
-            if hit is not None:
-                return hit
-        if self._fold:
-            return self._fold.get(normalize_key(spaced, fold=True))
-        return None
+            row = self._exact.get(normalize_key(spaced, fold=False))
+        if row is None and self._fold:
+            row = self._fold.get(normalize_key(spaced, fold=True))
+        return None if row is None else self._table.entry(row)
 
     def find(self, text: str) -> tuple[TermHit, ...]:
         """Every term in ``text`` on word boundaries, as offsets into ``text``, by start.
@@ -147,7 +273,7 @@ class TermMatcher:
             if not unicodedata.is_normalized("NFC", text):
                 view, origin = _nfc_with_map(text)
         spans: list[tuple[int, int]] | None = None
-        found: list[tuple[int, int, int, TermEntry]] = []
+        found: list[tuple[int, int, int, int]] = []
         for rank, keys, firsts in (
             (0, self._exact, self._exact_first),
             (1, self._fold, self._fold_first),
@@ -170,33 +296,30 @@ class TermMatcher:
         if not found:
             return ()
         if origin is not None:
-            found = [(origin[s], origin[e], rank, entry) for s, e, rank, entry in found]
-        return _longest_first(found)
+            found = [(origin[s], origin[e], rank, row) for s, e, rank, row in found]
+        return tuple(
+            TermHit(start=s, end=e, entry=self._table.entry(row))
+            for s, e, row in _longest_first(found)
+        )
 
 
-def _tables(entries: list[TermEntry]) -> tuple[dict[str, TermEntry], dict[str, int]]:
-    """key -> entry (the first listing wins; lint reports the others) and first piece ->
-    the most pieces a term starting with it has."""
-    keys: dict[str, TermEntry] = dict(
-        zip(reversed([str(e.key) for e in entries]), reversed(entries), strict=True)
-    )
+def _firsts(keys: dict[str, int]) -> dict[str, int]:
+    """First piece -> the most pieces a term starting with it has."""
     firsts: dict[str, int] = dict.fromkeys([k for k in keys if k.isascii() and k.isalnum()], 1)
-    for key in keys:
-        if key.isascii() and key.isalnum():
-            continue
+    for key in [k for k in keys if not (k.isascii() and k.isalnum())]:
         head, count = _first_piece(key)
         if firsts.get(head, 0) < count:
             firsts[head] = count
-    return keys, firsts
+    return firsts
 
 
 def _scan(
     words: list[str],
     spans: list[tuple[int, int]],
     firsts: dict[str, int],
-    keys: dict[str, TermEntry],
+    keys: dict[str, int],
     rank: int,
-    out: list[tuple[int, int, int, TermEntry]],
+    out: list[tuple[int, int, int, int]],
 ) -> None:
     n = len(words)
     for i, word in enumerate(words):
@@ -207,16 +330,17 @@ def _scan(
         for j in range(i, min(n, i + most)):
             if j > i:
                 phrase += (" " if spans[j][0] > spans[j - 1][1] else "") + words[j]
-            entry = keys.get(phrase)
-            if entry is not None:
-                out.append((spans[i][0], spans[j][1], rank, entry))
+            row = keys.get(phrase)
+            if row is not None:
+                out.append((spans[i][0], spans[j][1], rank, row))
 
 
-def _longest_first(found: list[tuple[int, int, int, TermEntry]]) -> tuple[TermHit, ...]:
+def _longest_first(found: list[tuple[int, int, int, int]]) -> list[tuple[int, int, int]]:
+    """(start, end, row) of the hits kept: longest first, then earlier, then exact."""
     found.sort(key=lambda h: (h[0] - h[1], h[0], h[2]))
-    taken: list[tuple[int, int, TermEntry]] = []
-    for start, end, _, entry in found:
+    taken: list[tuple[int, int, int]] = []
+    for start, end, _, row in found:
         if all(end <= s or start >= e for s, e, _ in taken):
-            taken.append((start, end, entry))
+            taken.append((start, end, row))
     taken.sort(key=lambda h: h[0])
-    return tuple(TermHit(start=s, end=e, entry=entry) for s, e, entry in taken)
+    return taken

@@ -98,7 +98,7 @@ def test_hits_map_back_to_the_original_text() -> None:
 def test_exact_and_fold_terms_on_the_same_span_keep_the_exact_one() -> None:
     exact, fold = entry("Kettlewick", EXACT, line=1), entry("kettlewick", line=2)
     (hit,) = TermMatcher([fold, exact]).find("Kettlewick")
-    assert hit.entry is exact
+    assert hit.entry == exact
 
 
 def test_lookup_is_an_exact_key_match() -> None:
@@ -113,7 +113,7 @@ def test_lookup_is_an_exact_key_match() -> None:
 def test_duplicate_keys_keep_the_first_listing() -> None:
     first, second = entry("Quillmate", line=1), entry("QUILLMATE", line=9)
     m = TermMatcher([first, second])
-    assert len(m) == 1 and m.lookup("quillmate") is first
+    assert len(m) == 1 and m.lookup("quillmate") == first
 
 
 def test_no_terms_no_hits() -> None:
