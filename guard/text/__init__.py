@@ -3,6 +3,9 @@
 Everything here describes text; nothing decides. All normalization and case folding
 lives in :mod:`guard.text.normalize`, the tokenizer in :mod:`guard.text.tokenize`, case
 shapes and scripts (UTS #39) in :mod:`guard.text.shape`.
+
+``tokenize`` is not re-exported here: the name would hide the submodule
+``guard.text.tokenize``; import it from there.
 """
 
 from guard.text.normalize import (
@@ -21,7 +24,6 @@ from guard.text.shape import (
     scripts_of,
     shape_of,
 )
-from guard.text.tokenize import tokenize
 
 __all__ = [
     "NormalizedText",
@@ -36,5 +38,4 @@ __all__ = [
     "scripts_of",
     "shape_of",
     "strip_accents",
-    "tokenize",
 ]

@@ -68,32 +68,42 @@ _ELISION = r"""(?<![\w'’])
 _CHUNK = rf"""{_W}+
       (?:(?:(?<=\d)[.,](?=\d)|(?<=\p{{L}}\p{{M}}*)['’·](?=\p{{L}})|[\-‐.](?={_W})){_W}+)*
       (?:\(\)|(?<=\d)(?:%|‰))?"""
+# Punctuation and symbols that can start a literal token (path, handle, tag, flag,
+# signed number, identifier): all others are a token of their own at once.
+_STARTERS = r"/\\.~@#\-+\u2212_"
 # After a word, what could make it part of a URL, e-mail or path.
 _LITERAL_NEXT = r"[@/\\+]|:[/\\]"
 
-# Alternatives are tried in order at each token start. The first ones are the fast,
-# common cases (whitespace, runs of plain words, punctuation, a word that no literal
-# can continue); the literal kinds follow; the last ones take whatever is left.
+# Alternatives are tried in order at each token start. An alternative that scans a run
+# of characters has a lookbehind that stops it from starting again inside such a run,
+# so that a failed scan is never repeated at every position (which would be quadratic).
+# The first ones are the fast, common cases (whitespace, runs of plain words,
+# punctuation, a word that no literal can continue); the literal kinds follow; the last
+# ones take whatever is left. Flags (pairs of regional indicators) are matched before
+# the last resort \X, which in the regex module rescans a long run of them for every
+# cluster.
 _PATTERN = rf"""
   (?P<space>(?>\r\n|\s)+{_END})
 | (?P<prose>{_PLAIN}(?:\x20{_PLAIN})*(?![\w\-‐.'’·(%‰]|{_LITERAL_NEXT}){_END})
-| (?P<mark>[,;:!?()\[\]{{}}"«»“”„]{_END})
+| (?P<mark>[\p{{P}}--[{_STARTERS}]]{_END})
+| (?P<sign>[\p{{S}}--[{_STARTERS}\p{{Regional_Indicator}}]]{_END})
 | (?P<cluster>(?=[[\w]&&[{_NOSPACE}]])\X)
 | (?P<elision>{_ELISION}{_END})
 | (?P<word>(?!www\.)(?>{_CHUNK})(?!{_LITERAL_NEXT}|['’]){_END})
-| (?P<url>(?:[A-Za-z][A-Za-z0-9+.\-]*://|www\.)[^\s<>"'`]*{_TAIL_STOP}{_END})
+| (?P<url>(?<![\w+.\-])(?:[A-Za-z][A-Za-z0-9+.\-]*://|www\.)[^\s<>"'`]*{_TAIL_STOP}{_END})
 | (?P<email>(?<![\w.+\-])[\w+\-]+(?:\.[\w+\-]+)*@[\w\-]+(?:\.[\w\-]+)+{_END})
 | (?P<path>
-      (?<![\w/\\])[A-Za-z]:\\(?:{_SEG}\\?)*(?<!\\){_END}
-    | (?<![\w/.~])(?:~|\.{{1,2}})(?:/\.?{_SEG})+/?{_END}
-    | (?<![\w/.~])(?:/\.?{_SEG}){{2,}}/?{_END}
-    | (?<![\w/.~\-])(?=\p{{L}}|_|\.)\.?{_SEG}(?:/\.?{_SEG})*/\.?{_SEG}\.[A-Za-z]\w*{_END}
+      (?<![\w/\\])[A-Za-z]:\\(?>{_SEG}(?:\\{_SEG})*){_END}
+    | (?<![\w/.~])(?:~|\.{{1,2}})(?>(?:/\.?{_SEG})+)/?{_END}
+    | (?<![\w/.~])(?>(?:/\.?{_SEG}){{2,}})/?{_END}
+    | (?<![\w/.~\-+%$])(?=\p{{L}}|_|\.)(?>\.?{_SEG}(?:/\.?{_SEG})+)(?<=\.[A-Za-z]\w{{0,15}}){_END}
   )
 | (?P<handle>(?<![\w@])@\w+(?:[.\-]\w+)*{_END})
 | (?P<hashtag>(?<![\w#&])\#\w*[^\W\d_]\w*{_END})
 | (?P<flag>(?<![\w\-])--?[A-Za-z][\w\-]*(?<!-)(?:=[^\s,;]*[^\s.,;:!?)'"])?{_END})
 | (?P<number>(?<![\w.\-+\u2212])[\-+\u2212]\d+(?:[.,]\d+)*(?:%|‰|\p{{L}}+)?{_END})
 | (?P<chunk>{_CHUNK}{_END})
+| (?P<regional>\p{{Regional_Indicator}}{{2}}{_END})
 | (?P<other>\X)
 """
 
@@ -102,7 +112,10 @@ _TOKEN = regex.compile(_PATTERN, regex.VERBOSE | regex.VERSION1)
 _NUMBER = regex.compile(r"\d+(?:[.,]\d+)*(?:\p{L}+|%|‰)?", regex.VERSION1)
 _HAS_DIGIT = regex.compile(r"\d")
 _HAS_LETTER = regex.compile(r"\p{L}")
-_CAMEL = regex.compile(r"\p{Ll}{2,}\p{Lu}|\p{Lu}\p{Ll}{2,}\p{Lu}\p{Ll}|\p{Lu}{2,}\p{Ll}{2,}")
+# readConfig, PumpController, HTTPServer; each run of one case is scanned once
+_CAMEL = regex.compile(
+    r"(?<!\p{Ll})\p{Ll}{2,}\p{Lu}|\p{Lu}\p{Ll}{2,}\p{Lu}\p{Ll}|(?<!\p{Lu})\p{Lu}{2,}\p{Ll}{2,}"
+)
 _PUNCT = regex.compile(r"\p{P}")
 _NUMERIC = regex.compile(r"\p{N}")
 
@@ -116,6 +129,8 @@ _GROUP_KIND = {
     "number": TokenKind.NUMBER,
     "elision": TokenKind.WORD,
     "mark": TokenKind.PUNCT,
+    "sign": TokenKind.SYMBOL,
+    "regional": TokenKind.SYMBOL,  # a flag: two regional indicators (UAX #29 GB12, GB13)
     "cluster": TokenKind.WORD,
     "space": TokenKind.SPACE,
 }
