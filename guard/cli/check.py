@@ -14,7 +14,6 @@ import click
 
 from guard.batch import Summary, check_records
 from guard.cli import common
-from guard.io.read import Limits, read_records
 from guard.io.write import atomic_output
 from guard.records import Verdict
 from guard.report import REPORTERS, ReportOptions
@@ -64,13 +63,14 @@ def command(
     Exit 0: nothing at or above --fail-on; 1: something is; 2: usage or ruleset error;
     130: interrupted (the --output file is left as it was).
     """
-    paths = list(files) or ["-"]
-    common.input_formats(paths, input_format)
-    names = common.field_names(fields)
-    refs = rules or common.default_rules()
-    checker = common.load_checker(refs)
-    limits = Limits(max_record_bytes=max_record_bytes, max_tokens=max_tokens)
-    records = read_records(paths, input_format=input_format, field_names=names, limits=limits)
+    inputs = common.open_inputs(
+        files,
+        rules=rules,
+        input_format=input_format,
+        fields=fields,
+        max_record_bytes=max_record_bytes,
+        max_tokens=max_tokens,
+    )
     summary = Summary()
     progress = common.Progress(report_on_terminal=output is None and sys.stdout.isatty())
     try:
@@ -81,12 +81,17 @@ def command(
                 rule_docs=common.rule_docs(),
                 tool_version=common.version(),
                 title="guard report: "
-                + ", ".join("stdin" if p == "-" else os.path.basename(p) for p in paths),
+                + ", ".join("stdin" if p == "-" else os.path.basename(p) for p in inputs.paths),
             )
             reporter = REPORTERS[fmt](stream, options)
             reporter.start()
             outcomes = check_records(
-                records, refs, jobs=jobs, lang_default=lang, limits=limits, checker=checker
+                inputs.records,
+                inputs.refs,
+                jobs=jobs,
+                lang_default=lang,
+                limits=inputs.limits,
+                checker=inputs.checker,
             )
             for outcome in common.tally(outcomes, summary, progress):
                 reporter.record(outcome)

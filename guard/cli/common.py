@@ -21,6 +21,7 @@ import os
 import sys
 import time
 from collections.abc import Callable, Iterable, Iterator, Sequence
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any, TextIO, TypeVar
 
@@ -29,7 +30,16 @@ import click
 from guard import __version__
 from guard.batch import Checker, Outcome, Summary, guard_checker
 from guard.errors import RulesetError
-from guard.io.read import FORMATS, FieldNames, InputFormatError, Limits, detect_format
+from guard.io.read import (
+    FORMATS,
+    ErrorRecord,
+    FieldNames,
+    InputFormatError,
+    InputRecord,
+    Limits,
+    detect_format,
+    read_records,
+)
 
 EXIT_OK = 0
 EXIT_FAIL = 1
@@ -142,6 +152,40 @@ def input_formats(files: Sequence[str], input_format: str | None) -> list[str]:
         return [detect_format(f, input_format) for f in files]
     except InputFormatError as e:
         raise click.UsageError(str(e)) from None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Inputs:
+    """Everything a batch command needs before its first record, in the order it is checked:
+    input formats, field names, then the ruleset (exit 2 on any of them, nothing read yet)."""
+
+    paths: list[str]
+    formats: list[str]
+    refs: tuple[str, ...]
+    checker: Checker
+    limits: Limits
+    records: Iterator[InputRecord | ErrorRecord]
+
+
+def open_inputs(
+    files: Sequence[str],
+    *,
+    rules: Sequence[str],
+    input_format: str | None,
+    fields: Sequence[str],
+    max_record_bytes: int,
+    max_tokens: int,
+) -> Inputs:
+    paths = list(files) or ["-"]
+    formats = input_formats(paths, input_format)
+    names = field_names(fields)
+    refs = tuple(rules) or default_rules()
+    checker = load_checker(refs)
+    limits = Limits(max_record_bytes=max_record_bytes, max_tokens=max_tokens)
+    records = read_records(paths, input_format=input_format, field_names=names, limits=limits)
+    return Inputs(
+        paths=paths, formats=formats, refs=refs, checker=checker, limits=limits, records=records
+    )
 
 
 def load_checker(refs: Sequence[str]) -> Checker:

@@ -22,7 +22,7 @@ import click
 
 from guard.batch import Outcome, Summary, check_records
 from guard.cli import common
-from guard.io.read import InputRecord, Limits, read_records
+from guard.io.read import InputRecord
 from guard.io.write import atomic_output
 from guard.report.base import error_json
 from guard.report.jsonl import dumps
@@ -59,24 +59,30 @@ def command(
     Exit 0: every record checked; 1: some could not be; 2: usage or ruleset error;
     130: interrupted.
     """
-    paths = list(files) or ["-"]
-    formats = set(common.input_formats(paths, input_format))
+    formats = sorted(set(common.input_formats(list(files) or ["-"], input_format)))
     if len(formats) > 1:
         raise click.UsageError(
-            f"filter writes the format it reads, and the inputs mix {', '.join(sorted(formats))}"
+            f"filter writes the format it reads, and the inputs mix {', '.join(formats)}"
         )
-    fmt = formats.pop()
-    names = common.field_names(fields)
-    refs = rules or common.default_rules()
-    checker = common.load_checker(refs)
-    limits = Limits(max_record_bytes=max_record_bytes, max_tokens=max_tokens)
-    records = read_records(paths, input_format=input_format, field_names=names, limits=limits)
+    inputs = common.open_inputs(
+        files,
+        rules=rules,
+        input_format=input_format,
+        fields=fields,
+        max_record_bytes=max_record_bytes,
+        max_tokens=max_tokens,
+    )
     summary = Summary()
     try:
         with atomic_output(output, line_buffering=True) as stream:
-            writer = _writer(fmt, stream, undo_flagged)
+            writer = _writer(formats[0], stream, undo_flagged)
             outcomes = check_records(
-                records, refs, jobs=jobs, lang_default=lang, limits=limits, checker=checker
+                inputs.records,
+                inputs.refs,
+                jobs=jobs,
+                lang_default=lang,
+                limits=inputs.limits,
+                checker=inputs.checker,
             )
             for outcome in common.tally(outcomes, summary):
                 if outcome.report is None:

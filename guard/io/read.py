@@ -367,9 +367,8 @@ def _bad_strings(value: object) -> str | None:
     return None
 
 
-def _jsonl(
-    lines: Iterator[_Line], display: str, names: FieldNames, lim: Limits
-) -> Iterator[Record]:
+def _texts(lines: Iterator[_Line], display: str) -> Iterator[tuple[int, str] | ErrorRecord]:
+    """Each line as (number, text), or the error record of a line that is no text or blank."""
     for line in lines:
         if line.data is None:
             yield _file_error(line, display)
@@ -377,10 +376,20 @@ def _jsonl(
         text, why = _decode(line)
         if text is None:
             yield ErrorRecord(file=display, line=line.number, reason=why or "", raw=_raw(line.data))
-            continue
-        if not text.strip():
+        elif not text.strip():
             yield ErrorRecord(file=display, line=line.number, reason="blank line", raw=_raw(text))
+        else:
+            yield line.number, text
+
+
+def _jsonl(
+    lines: Iterator[_Line], display: str, names: FieldNames, lim: Limits
+) -> Iterator[Record]:
+    for item in _texts(lines, display):
+        if isinstance(item, ErrorRecord):
+            yield item
             continue
+        number, text = item
         try:
             value = json.loads(text, object_pairs_hook=_no_duplicates)
         except _Duplicate as e:
@@ -390,9 +399,9 @@ def _jsonl(
         except json.JSONDecodeError as e:
             reason = f"not valid JSON: {e.msg} at column {e.colno}"
         else:
-            yield _from_mapping(value, display, line.number, names, lim, text)
+            yield _from_mapping(value, display, number, names, lim, text)
             continue
-        yield ErrorRecord(file=display, line=line.number, reason=reason, raw=_raw(text))
+        yield ErrorRecord(file=display, line=number, reason=reason, raw=_raw(text))
 
 
 def _from_mapping(
@@ -520,22 +529,16 @@ def _candidates(v: object, name: str, *, table: bool) -> tuple[str, ...] | None:
 
 
 def _pairs(lines: Iterator[_Line], display: str, names: FieldNames) -> Iterator[Record]:
-    for line in lines:
-        if line.data is None:
-            yield _file_error(line, display)
+    for item in _texts(lines, display):
+        if isinstance(item, ErrorRecord):
+            yield item
             continue
-        text, why = _decode(line)
-        if text is None:
-            yield ErrorRecord(file=display, line=line.number, reason=why or "", raw=_raw(line.data))
-            continue
-        if not text.strip():
-            yield ErrorRecord(file=display, line=line.number, reason="blank line", raw=_raw(text))
-            continue
+        number, text = item
         cells = text.split("\t")
         if len(cells) != 2:
             yield ErrorRecord(
                 file=display,
-                line=line.number,
+                line=number,
                 reason=f"expected source<TAB>proposal, got {len(cells)} cell(s)",
                 raw=_raw(text),
             )
@@ -544,14 +547,14 @@ def _pairs(lines: Iterator[_Line], display: str, names: FieldNames) -> Iterator[
         if m:
             yield ErrorRecord(
                 file=display,
-                line=line.number,
+                line=number,
                 reason=f"control character U+{ord(m.group()):04X} in the line",
                 raw=_raw(text),
             )
             continue
         fields: dict[str, object] = {names.source: cells[0], names.proposal: cells[1]}
         yield InputRecord(
-            file=display, line=line.number, fields=fields, source=cells[0], proposal=cells[1]
+            file=display, line=number, fields=fields, source=cells[0], proposal=cells[1]
         )
 
 
