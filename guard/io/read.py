@@ -51,6 +51,7 @@ _EXTENSIONS: Final = {
 
 STDIN: Final = "-"
 STDIN_NAME: Final = "<stdin>"
+_GZIP_MAGIC: Final = b"\x1f\x8b"
 _RAW_KEEP: Final = 200  # characters of a bad line kept in its error record
 _CHUNK: Final = 1 << 16
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
@@ -139,7 +140,8 @@ Record = InputRecord | ErrorRecord
 def detect_format(path: str, input_format: str | None = None) -> str:
     """The input format of ``path``: ``input_format`` when given, else from the extension.
 
-    A ``.gz`` suffix is looked through; standard input is JSONL unless told otherwise.
+    A ``.gz`` suffix is looked through; standard input is JSONL unless told otherwise (and
+    is decompressed when it starts with the gzip magic bytes).
 
     >>> detect_format("batch.csv.gz")
     'csv'
@@ -223,6 +225,9 @@ def _open(path: str, stdin: IO[bytes] | None) -> IO[bytes]:
         # closed by the caller
         return gzip.open(path, "rb") if gz else open(path, "rb")  # type: ignore[return-value]
     stream: IO[bytes] = stdin if stdin is not None else sys.stdin.buffer
+    peek = getattr(stream, "peek", None)
+    if peek is not None and peek(2)[:2] == _GZIP_MAGIC:  # RFC 1952: ID1 = 0x1f, ID2 = 0x8b
+        return gzip.GzipFile(fileobj=stream, mode="rb")  # type: ignore[return-value]
     return stream
 
 

@@ -285,6 +285,15 @@ def test_files_by_extension_gzip_and_a_missing_file(tmp_path: Path) -> None:
     assert isinstance(gone, ErrorRecord) and gone.reason == "cannot open: No such file or directory"
 
 
+def test_gzip_on_stdin_is_recognised_by_its_magic_bytes() -> None:
+    # RFC 1952 section 2.3.1: a gzip member starts with ID1 = 31 (0x1f), ID2 = 139 (0x8b)
+    data = gzip.compress(GOOD + b"\n" + GOOD + b"\n")
+    assert data[:2] == bytes([31, 139])
+    stdin = io.BufferedReader(io.BytesIO(data))  # like sys.stdin.buffer, it can peek
+    records = list(read_records(["-"], stdin=stdin))
+    assert reasons(records) == [None, None]
+
+
 @pytest.mark.parametrize(
     ("name", "fmt"),
     [
