@@ -40,9 +40,11 @@ import time
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import asdict, dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import Any, TypeVar
 
 import workload as wl
+
+T = TypeVar("T")
 
 # ---------------------------------------------------------------------------- sizes
 
@@ -194,7 +196,7 @@ def render(rows: Sequence[Row], smoke: bool) -> str:
 # --------------------------------------------------------------------------- helpers
 
 
-def rotations(cases: Sequence[str], r: int) -> list[str]:
+def rotations(cases: Sequence[T], r: int) -> list[T]:
     """The cases in the order repeat ``r`` runs them: rotated by one each repeat."""
     k = r % len(cases)
     return [*cases[k:], *cases[:k]]
@@ -308,9 +310,9 @@ def api_rows(
                 clock = time.perf_counter_ns
                 c0 = time.process_time()
                 for p in batch:
-                    t0 = clock()
+                    s0 = clock()
                     check(p.source, p.proposal, lang="en")
-                    ns.append(clock() - t0)
+                    ns.append(clock() - s0)
                 cpu.values.append((time.process_time() - c0) / len(batch) * 1e6)
                 us = [x / 1000 for x in ns]
                 med.values.append(statistics.median(us))
@@ -348,7 +350,7 @@ def build_spellers(sz: Sizes, tmp: Path) -> dict[str, Callable[[str], object]]:
     import importlib.resources
 
     from spellchecker import SpellChecker
-    from symspellpy import SymSpell, Verbosity
+    from symspellpy import SymSpell, Verbosity  # type: ignore[import-untyped]
 
     pkg = importlib.resources.files("symspellpy")
     words = Path(str(pkg / "frequency_dictionary_en_82_765.txt"))
@@ -425,9 +427,9 @@ def speller_rows(
             if case == "guard":
                 clock = time.perf_counter_ns
                 for p in batch:
-                    t0 = clock()
+                    s0 = clock()
                     check(p.source, p.proposal, lang="en")
-                    guard_us.append((clock() - t0) / 1000)
+                    guard_us.append((clock() - s0) / 1000)
                 guard_row.values.append(statistics.fmean(guard_us))
                 continue
             k = sz.slow_speller_queries if case == "pyspell-d2" else q
@@ -441,8 +443,8 @@ def speller_rows(
             k = sz.slow_speller_queries if case == "pyspell-d2" else q
             share[case].values.append(100 * statistics.fmean(guard_us[:k]) / us)
     rows = [guard_row]
-    for k in spellers:
-        rows += [cost[k], share[k]]
+    for name in spellers:
+        rows += [cost[name], share[name]]
     return rows
 
 
@@ -708,7 +710,10 @@ def profile(guard: Any, pool: Sequence[wl.Pair], top: int = 15) -> str:
     for p in pool:
         check(p.source, p.proposal, lang="en")
     prof.stop()
-    root = prof.last_session.root_frame()
+    session = prof.last_session
+    root = session.root_frame() if session is not None else None
+    if root is None:
+        return "pyinstrument took no samples: no profile"
     own: dict[str, float] = {}  # time in the function's own code (pyinstrument's "[self]")
     by_file: dict[str, float] = {}
     inside: dict[str, float] = {}  # time in it and in what it calls
