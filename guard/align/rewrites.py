@@ -26,7 +26,7 @@ import unicodedata
 from collections.abc import Iterable, Sequence
 
 import regex
-from rapidfuzz.distance import Levenshtein
+from rapidfuzz.distance import OSA, Levenshtein
 
 from guard.records import Refinement, Rewrite, RewriteKind, Token, TokenKind
 from guard.text.normalize import strip_accents
@@ -132,37 +132,135 @@ def _squash(text: str) -> str:
 
 
 def _regions(
-    a: Sequence[str], b: Sequence[str], a_spans: Sequence[_Span]
+    a: Sequence[str], b: Sequence[str], a_space: Sequence[bool], b_space: Sequence[bool]
 ) -> list[tuple[int, int, int, int]]:
-    """Changed token regions ``(i1, i2, j1, j2)``: adjacent changes merged, and changes
-    separated only by unchanged whitespace merged when together they are a split or join."""
-    merged: list[list[int]] = []
-    gap_is_space = False  # the equal run since the last change is only whitespace
+    """Changed token regions ``(i1, i2, j1, j2)``, one a rewrite, in order.
+
+    rapidfuzz's opcodes find what changed; changes separated only by unchanged
+    whitespace form a group, which :func:`_realign` aligns again word by word, so that
+    "to day to morrow" -> "today tomorrow" gives two joins, not a shifted pair.
+    """
+    groups: list[list[list[int]]] = []  # each group: its changed blocks [i1, i2, j1, j2]
+    gap_is_space = False  # the unchanged run since the last change is only whitespace
     for op in Levenshtein.opcodes(a, b):
         i1, i2, j1, j2 = op.src_start, op.src_end, op.dest_start, op.dest_end
         if op.tag == "equal":
-            gap_is_space = all(a_spans[i][2] is TokenKind.SPACE for i in range(i1, i2))
+            gap_is_space = all(a_space[i1:i2])
             continue
-        last = merged[-1] if merged else None
-        if last is not None and (
-            (last[1] == i1 and last[3] == j1)
-            or (
-                gap_is_space
-                and _squash("".join(a[last[0] : i2])) == _squash("".join(b[last[2] : j2]))
-            )
-        ):
-            last[1], last[3] = i2, j2
+        if groups and groups[-1][-1][1] == i1 and groups[-1][-1][3] == j1:
+            groups[-1][-1][1], groups[-1][-1][3] = i2, j2  # adjacent: one block
+        elif groups and gap_is_space:
+            groups[-1].append([i1, i2, j1, j2])
         else:
-            merged.append([i1, i2, j1, j2])
+            groups.append([[i1, i2, j1, j2]])
     out: list[tuple[int, int, int, int]] = []
-    for i1, i2, j1, j2 in merged:
-        # Merging across whitespace may bring equal tokens to the edges: leave them out.
-        while i1 < i2 and j1 < j2 and a[i1] == b[j1]:
-            i1, j1 = i1 + 1, j1 + 1
-        while i1 < i2 and j1 < j2 and a[i2 - 1] == b[j2 - 1]:
-            i2, j2 = i2 - 1, j2 - 1
-        out.append((i1, i2, j1, j2))
+    for blocks in groups:
+        i1, j1 = blocks[0][0], blocks[0][2]
+        i2, j2 = blocks[-1][1], blocks[-1][3]
+        if len(blocks) == 1 and (i2 - i1 <= 1 or j2 - j1 <= 1) and not _joinable(a, b, blocks[0]):
+            out.append((i1, i2, j1, j2))
+        elif (i2 - i1) * (j2 - j1) <= _REALIGN_LIMIT:
+            out.extend(_realign(a, b, a_space, b_space, i1, i2, j1, j2))
+        else:  # too large to realign: keep rapidfuzz's blocks
+            out.extend((b1, b2, c1, c2) for b1, b2, c1, c2 in blocks)
     return out
+
+
+# Beyond this many token pairs a group keeps rapidfuzz's alignment (the realignment is
+# quadratic Python; real changes are a few tokens).
+_REALIGN_LIMIT = 1600
+
+
+def _joinable(a: Sequence[str], b: Sequence[str], block: Sequence[int]) -> bool:
+    """Whether a one-to-many block could hold a split or join worth realigning."""
+    i1, i2, j1, j2 = block
+    return (i2 - i1 == 1 and j2 - j1 >= 3) or (j2 - j1 == 1 and i2 - i1 >= 3)
+
+
+def _realign(
+    a: Sequence[str],
+    b: Sequence[str],
+    a_space: Sequence[bool],
+    b_space: Sequence[bool],
+    i1: int,
+    i2: int,
+    j1: int,
+    j2: int,
+) -> list[tuple[int, int, int, int]]:
+    """Align ``a[i1:i2]`` with ``b[j1:j2]`` by least cost, with splits and joins as moves.
+
+    Costs: equal tokens 0; a word for a word, their normalized character distance
+    (optimal string alignment, 0 to 1); whitespace for whitespace 0.2; inserting or
+    deleting a word 1, whitespace 0.3; a join of two or three words (with the whitespace
+    between) into one, or a split, 0.5 a joined word boundary plus twice the distance of
+    the joined letters. The path's consecutive changes make one region each.
+    """
+    n, m = i2 - i1, j2 - j1
+    inf = float("inf")
+    cost = [[inf] * (m + 1) for _ in range(n + 1)]
+    back: list[list[tuple[int, int, bool] | None]] = [[None] * (m + 1) for _ in range(n + 1)]
+    cost[0][0] = 0.0
+
+    def relax(i: int, j: int, pi: int, pj: int, c: float, changed: bool) -> None:
+        if c < cost[i][j]:
+            cost[i][j] = c
+            back[i][j] = (pi, pj, changed)
+
+    for i in range(n + 1):
+        for j in range(m + 1):
+            c = cost[i][j]
+            if c == inf:
+                continue
+            x = a[i1 + i] if i < n else None
+            y = b[j1 + j] if j < m else None
+            x_space = i < n and a_space[i1 + i]
+            y_space = j < m and b_space[j1 + j]
+            if x is not None and y is not None:
+                if x == y:
+                    relax(i + 1, j + 1, i, j, c, False)
+                elif x_space and y_space:
+                    relax(i + 1, j + 1, i, j, c + 0.2, True)
+                elif not x_space and not y_space:
+                    relax(i + 1, j + 1, i, j, c + OSA.normalized_distance(x, y), True)
+            if x is not None:
+                relax(i + 1, j, i, j, c + (0.3 if x_space else 1.0), True)
+            if y is not None:
+                relax(i, j + 1, i, j, c + (0.3 if y_space else 1.0), True)
+            if y is not None and not y_space:
+                for k in (3, 5):
+                    words = _words(a, a_space, i1 + i, i1 + min(i + k, n), k)
+                    if words is not None:
+                        d = OSA.normalized_distance(words, y)
+                        relax(i + k, j + 1, i, j, c + k // 2 * 0.5 + 2 * d, True)
+            if x is not None and not x_space:
+                for k in (3, 5):
+                    words = _words(b, b_space, j1 + j, j1 + min(j + k, m), k)
+                    if words is not None:
+                        d = OSA.normalized_distance(x, words)
+                        relax(i + 1, j + k, i, j, c + k // 2 * 0.5 + 2 * d, True)
+    path: list[tuple[int, int, int, int]] = []  # changed steps, last first
+    i, j = n, m
+    while i or j:
+        step = back[i][j]
+        assert step is not None  # every cell on the path was reached
+        pi, pj, changed = step
+        if changed:
+            if path and path[-1][0] == i and path[-1][2] == j:
+                path[-1] = (pi, path[-1][1], pj, path[-1][3])  # adjacent change: extend
+            else:
+                path.append((pi, i, pj, j))
+        i, j = pi, pj
+    return [(i1 + p, i1 + q, j1 + r, j1 + s) for p, q, r, s in reversed(path)]
+
+
+def _words(tokens: Sequence[str], space: Sequence[bool], i: int, end: int, k: int) -> str | None:
+    """The letters of ``k`` tokens from ``i`` if they are word, space, word (, space, word)."""
+    if end - i != k:
+        return None
+    for t in range(i, end):
+        if space[t] != ((t - i) % 2 == 1):
+            return None
+    return "".join(tokens[t] for t in range(i, end, 2))
 
 
 def _tokens(text: str, span_list: Sequence[_Span], offset: int) -> tuple[Token, ...]:
@@ -190,7 +288,9 @@ def align(source: str, proposal: str) -> tuple[Rewrite, ...]:
     a = [source[s:e] for s, e, _ in a_spans]
     b = [proposal[s:e] for s, e, _ in b_spans]
     rewrites: list[Rewrite] = []
-    for i1, i2, j1, j2 in _regions(a, b, a_spans):
+    a_space = [k is TokenKind.SPACE for _, _, k in a_spans]
+    b_space = [k is TokenKind.SPACE for _, _, k in b_spans]
+    for i1, i2, j1, j2 in _regions(a, b, a_space, b_space):
         old_spans, new_spans = a_spans[i1:i2], b_spans[j1:j2]
         old_start = a_spans[i1][0] if i1 < i2 else _position(a_spans, i1, start)
         old_end = a_spans[i2 - 1][1] if i1 < i2 else old_start
