@@ -14,10 +14,11 @@ This module never prints; it only turns records into outcomes and counts them.
 
 from __future__ import annotations
 
+import functools
 import multiprocessing
 import signal
 from collections import Counter, deque
-from collections.abc import Callable, Iterable, Iterator, Sequence
+from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
 from concurrent.futures import Future, ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
@@ -53,15 +54,21 @@ class Job:
 Checker = Callable[[Job], Report]
 """Checks one pair; may raise, and the batch turns that into an error outcome."""
 
-CheckerFactory = Callable[[tuple[str, ...]], Checker]
-"""Builds a checker from ruleset references, once per process. Must be picklable."""
+CheckerFactory = Callable[..., Checker]
+"""Builds a checker from ruleset references (and ``overrides=`` when there are any), once
+per process. Must be picklable."""
 
 
-def guard_checker(ruleset_refs: tuple[str, ...]) -> Checker:
-    """The engine's checker for these rulesets (raises RulesetError when they are bad)."""
+def guard_checker(
+    ruleset_refs: tuple[str, ...], overrides: Mapping[str, object] | None = None
+) -> Checker:
+    """The engine's checker for these rulesets (raises RulesetError when they are bad).
+
+    ``overrides`` are settings by key path (``rules.edit-budget.action``), applied last.
+    """
     from guard.api import Guard, load_ruleset
 
-    engine = Guard(load_ruleset(*ruleset_refs))
+    engine = Guard(load_ruleset(*ruleset_refs, overrides=overrides))
 
     def check(job: Job) -> Report:
         return engine.check(job.source, job.proposal, lang=job.lang, score=job.score)
@@ -94,6 +101,7 @@ def check_records(
     jobs: int = 1,
     lang_default: str | None = None,
     limits: Limits | None = None,
+    overrides: Mapping[str, object] | None = None,
     checker: Checker | None = None,
     checker_factory: CheckerFactory = guard_checker,
     chunk_size: int = 16,
@@ -104,10 +112,13 @@ def check_records(
     ``checker`` is the in-process checker to use with one job (built from
     ``checker_factory`` when not given); with ``jobs > 1`` every worker builds its own
     with ``checker_factory(ruleset_refs)``. ``lang_default`` is the language of records
-    that name none (None: the ruleset's first language).
+    that name none (None: the ruleset's first language). ``overrides`` are ruleset
+    settings by key path, passed to the factory.
     """
     lim = limits or Limits()
     refs = tuple(ruleset_refs)
+    if overrides:
+        checker_factory = functools.partial(checker_factory, overrides=dict(overrides))
     prepared = (_prepare(r, lang_default, lim) for r in records)
     if jobs <= 1:
         check = checker if checker is not None else checker_factory(refs)

@@ -48,6 +48,7 @@ def command(
     ctx: click.Context,
     files: tuple[str, ...],
     rules: tuple[str, ...],
+    settings: tuple[str, ...],
     lang: str | None,
     fmt: str,
     output: str | None,
@@ -66,6 +67,7 @@ def command(
     inputs = common.open_inputs(
         files,
         rules=rules,
+        settings=settings,
         input_format=input_format,
         fields=fields,
         max_record_bytes=max_record_bytes,
@@ -91,6 +93,7 @@ def command(
                 jobs=jobs,
                 lang_default=lang,
                 limits=inputs.limits,
+                overrides=inputs.overrides,
                 checker=inputs.checker,
             )
             for outcome in common.tally(outcomes, summary, progress):

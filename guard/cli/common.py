@@ -20,6 +20,7 @@ import io
 import os
 import sys
 import time
+import tomllib
 from collections.abc import Callable, Iterable, Iterator, Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -59,6 +60,15 @@ def default_rules(folder: Path | None = None) -> tuple[str, ...]:
 
 
 def rules_option(f: F) -> F:
+    """``--rules`` and ``--set``: which rulesets, and settings over them."""
+    f = click.option(
+        "--set",
+        "settings",
+        multiple=True,
+        metavar="KEY=VALUE",
+        help="A ruleset setting over the rulesets, e.g. rules.edit-budget.action=off or "
+        "rules.real-word.lang.de.min-zipf=3.5 (VALUE as in TOML); repeatable.",
+    )(f)
     return click.option(
         "--rules",
         "rules",
@@ -67,6 +77,25 @@ def rules_option(f: F) -> F:
         help=f"Ruleset: a bundled name or a ruleset.toml path; repeatable. "
         f"Default: ./{RULES_FILE} if it exists, else the bundled 'base'.",
     )(f)
+
+
+def parse_settings(values: Sequence[str]) -> dict[str, object]:
+    """``--set KEY=VALUE`` values; VALUE is read as a TOML value, else taken as text.
+
+    >>> parse_settings(["rules.edit-budget.max-distance=3", "rules.short-token.action=off"])
+    {'rules.edit-budget.max-distance': 3, 'rules.short-token.action': 'off'}
+    """
+    out: dict[str, object] = {}
+    for value in values:
+        key, sep, raw = value.partition("=")
+        if not sep or not key.strip():
+            raise click.BadParameter(f"{value!r}: expected KEY=VALUE", param_hint="--set")
+        try:
+            parsed: object = tomllib.loads(f"v = {raw}")["v"]
+        except tomllib.TOMLDecodeError:
+            parsed = raw
+        out[key.strip()] = parsed
+    return out
 
 
 def lang_option(f: F) -> F:
@@ -162,6 +191,7 @@ class Inputs:
     paths: list[str]
     formats: list[str]
     refs: tuple[str, ...]
+    overrides: dict[str, object]
     checker: Checker
     limits: Limits
     records: Iterator[InputRecord | ErrorRecord]
@@ -171,6 +201,7 @@ def open_inputs(
     files: Sequence[str],
     *,
     rules: Sequence[str],
+    settings: Sequence[str],
     input_format: str | None,
     fields: Sequence[str],
     max_record_bytes: int,
@@ -180,18 +211,25 @@ def open_inputs(
     formats = input_formats(paths, input_format)
     names = field_names(fields)
     refs = tuple(rules) or default_rules()
-    checker = load_checker(refs)
+    overrides = parse_settings(settings)
+    checker = load_checker(refs, overrides)
     limits = Limits(max_record_bytes=max_record_bytes, max_tokens=max_tokens)
     records = read_records(paths, input_format=input_format, field_names=names, limits=limits)
     return Inputs(
-        paths=paths, formats=formats, refs=refs, checker=checker, limits=limits, records=records
+        paths=paths,
+        formats=formats,
+        refs=refs,
+        overrides=overrides,
+        checker=checker,
+        limits=limits,
+        records=records,
     )
 
 
-def load_checker(refs: Sequence[str]) -> Checker:
+def load_checker(refs: Sequence[str], overrides: dict[str, object] | None = None) -> Checker:
     """The in-process checker, or every ruleset problem on stderr and exit 2."""
     try:
-        return guard_checker(tuple(refs))
+        return guard_checker(tuple(refs), overrides or None)
     except RulesetError as e:
         for problem in e.problems:
             click.echo(str(problem), err=True)

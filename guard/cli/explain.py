@@ -37,12 +37,13 @@ def command(
     source: str,
     proposal: str,
     rules: tuple[str, ...],
+    settings: tuple[str, ...],
     lang: str | None,
     score: float | None,
 ) -> None:
     """Explain, in words, the verdict on turning SOURCE into PROPOSAL."""
     refs = rules or common.default_rules()
-    checker = common.load_checker(refs)
+    checker = common.load_checker(refs, common.parse_settings(settings))
     report = checker(Job(source=source, proposal=proposal, lang=lang, score=score))
     for line in explain_lines(report):
         click.echo(line)

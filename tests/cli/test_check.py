@@ -294,3 +294,24 @@ def test_progress_only_on_a_terminal_and_not_over_the_report() -> None:
         quiet.update(summary)
         quiet.close()
         assert stream.getvalue() == ""
+
+
+def test_settings_over_the_ruleset(ruleset: str) -> None:
+    args = ["--rules", ruleset, "--format", "jsonl"]
+    _, out, _ = run(args, jsonl(FLAG))
+    assert json.loads(out)["verdict"] == "flag"
+    _, out, _ = run([*args, "--set", "rules.protected-term.action=veto"], jsonl(FLAG))
+    assert json.loads(out)["verdict"] == "veto"
+    code, out, err = run([*args, "--set", "rules.no-such-rule.action=off"], jsonl(FLAG))
+    assert (code, out) == (2, "")
+    assert "unknown rule 'no-such-rule'" in err
+    code, _, err = run([*args, "--set", "novalue"], jsonl(FLAG))
+    assert code == 2 and "'novalue': expected KEY=VALUE" in err
+
+
+def test_settings_reach_every_worker(tmp_path: Path, ruleset: str) -> None:
+    batch = tmp_path / "pairs.jsonl"
+    batch.write_text(jsonl(FLAG) * 4)
+    args = [str(batch), "--rules", ruleset, "--format", "jsonl", "--jobs", "2"]
+    _, out, _ = run([*args, "--set", "rules.protected-term.action=veto"])
+    assert [json.loads(line)["verdict"] for line in out.splitlines()] == ["veto"] * 4
