@@ -106,7 +106,10 @@ def _refinement(old: str, new: str) -> Refinement | None:
     """The one kind of difference ``old`` and ``new`` differ by, if only one."""
     if old.casefold() == new.casefold():
         return Refinement.CASE
-    if strip_accents(old) == strip_accents(new) and _diacritics_only(old, new):
+    if old.isascii() and new.isascii():
+        if old.isalnum() and new.isalnum():
+            return None  # letters and digits only: no accent, space or punctuation to differ
+    elif strip_accents(old) == strip_accents(new) and _diacritics_only(old, new):
         return Refinement.ACCENTS
     if _SPACE.sub("", old) == _SPACE.sub("", new):
         return Refinement.SPACING
