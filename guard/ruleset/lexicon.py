@@ -225,23 +225,66 @@ def _cache_name(wf_lang: str) -> str | None:
     return f"lexicon-{wf_lang}-wordfreq{version('wordfreq')}-{digest}.txt"
 
 
-def _read_cache(file: Path, wf_lang: str) -> Lexicon | None:
+def read_private(file: Path, fmt: str) -> tuple[list[str], bytes] | None:
+    """The header fields after ``fmt`` and the body of a cache file, or None.
+
+    None unless the file is a regular file (not a link) owned by the user, not writable
+    by others, starts with ``fmt``, and its body has the SHA-256 its header names (the
+    last header field): a cache file is data, checked before use, never code.
+    """
     try:
         fd = os.open(file, os.O_RDONLY | getattr(os, "O_NOFOLLOW", 0))
     except OSError:
         return None
     with os.fdopen(fd, "rb") as fh:
         st = os.fstat(fh.fileno())
-        if st.st_uid != os.getuid() or st.st_mode & (stat.S_IWGRP | stat.S_IWOTH):
+        if not stat.S_ISREG(st.st_mode) or st.st_uid != os.getuid():
+            return None
+        if st.st_mode & (stat.S_IWGRP | stat.S_IWOTH):
             return None
         data = fh.read()
     head, _, body = data.partition(b"\n")
-    fields = head.decode("ascii", "replace").split(" ")
-    if " ".join(fields[:2]) != _FORMAT or len(fields) != 4 or not fields[2].isdigit():
+    text = head.decode("ascii", "replace")
+    if not text.startswith(fmt + " "):
         return None
-    if hashlib.sha256(body).hexdigest() != fields[3]:
+    fields = text[len(fmt) + 1 :].split(" ")
+    if hashlib.sha256(body).hexdigest() != fields[-1]:
         return None
-    n = int(fields[2])
+    return fields[:-1], body
+
+
+def write_private(file: Path, fmt: str, fields: list[str], body: bytes) -> None:
+    """Write a cache file atomically (a temporary file renamed into place); errors are
+    ignored, as a cache that cannot be written only costs time."""
+    head = " ".join([fmt, *fields, hashlib.sha256(body).hexdigest()]) + "\n"
+    try:
+        fd, tmp = tempfile.mkstemp(dir=file.parent, prefix=".guard-", suffix=".tmp")
+    except OSError:
+        return
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(head.encode("ascii") + body)
+        os.replace(tmp, file)
+    except OSError:
+        Path(tmp).unlink(missing_ok=True)
+
+
+def cache_dir() -> Path | None:
+    """The private cache folder to use, or None (cache off by ``GUARD_NO_CACHE=1``, or
+    the folder is not safe)."""
+    if os.environ.get("GUARD_NO_CACHE", "") not in {"", "0"}:
+        return None
+    return private_dir(default_cache_dir())
+
+
+def _read_cache(file: Path, wf_lang: str) -> Lexicon | None:
+    got = read_private(file, _FORMAT)
+    if got is None:
+        return None
+    fields, body = got
+    if len(fields) != 1 or not fields[0].isdigit():
+        return None
+    n = int(fields[0])
     bands = array("H")
     bands.frombytes(body[: 2 * n])
     if sys.byteorder != "little":
@@ -258,14 +301,7 @@ def _write_cache(file: Path, lex: Lexicon) -> None:
     if sys.byteorder != "little":
         bands.byteswap()
     body = bands.tobytes() + "\n".join(lex._words).encode("utf-8")
-    head = f"{_FORMAT} {len(lex)} {hashlib.sha256(body).hexdigest()}\n".encode("ascii")
-    fd, tmp = tempfile.mkstemp(dir=file.parent, prefix=".lexicon-", suffix=".tmp")
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(head + body)
-        os.replace(tmp, file)
-    except OSError:
-        Path(tmp).unlink(missing_ok=True)
+    write_private(file, _FORMAT, [str(len(lex))], body)
 
 
 def load_lexicon(lang: str, *, cache_dir: Path | None = None) -> Lexicon | None:
@@ -301,5 +337,4 @@ def get_lexicon(lang: str) -> Lexicon | None:
         return None
     if wf_lang != lang:
         return get_lexicon(wf_lang)
-    use_cache = os.environ.get("GUARD_NO_CACHE", "") in {"", "0"}
-    return load_lexicon(wf_lang, cache_dir=default_cache_dir() if use_cache else None)
+    return load_lexicon(wf_lang, cache_dir=cache_dir())

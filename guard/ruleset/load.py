@@ -16,9 +16,11 @@ the caller allows it; chains are at most ``Limits.max_depth`` deep; lists are bo
 from __future__ import annotations
 
 import difflib
+import hashlib
 import importlib
 import os
 import re
+import sys
 import tomllib
 import unicodedata
 from array import array
@@ -266,6 +268,7 @@ class _FileReader:
         limits: Limits,
         allow_outside: bool,
         lint: bool,
+        use_cache: bool = False,
     ) -> None:
         self.path = path
         self.file = str(path)
@@ -275,6 +278,7 @@ class _FileReader:
         self.limits = limits
         self.allow_outside = allow_outside
         self.lint = lint
+        self.use_cache = use_cache
         self.layer = _Layer(path=path)
         self.lines = KeyLines("")
 
@@ -464,11 +468,20 @@ class _FileReader:
     def read_terms(self, path: Path, key: str, kind: str, case: CasePolicy) -> TermTable:
         fold = case is CasePolicy.FOLD
         file = str(path)
+        data = self.read_list(path, key)
+        if data is None:
+            return TermTable([], [], array("L"), [])
+        cache = _TermListCache(data, fold, self.limits) if self.use_cache else None
+        if cache is not None:
+            got = cache.read()
+            if got is not None:
+                return TermTable(*got, [(0, file, kind, case)])
         limit = self.limits.max_term_chars
+        errors_before = len(self.p.errors)
         terms: list[str] = []
         keys: list[NormalizedText] = []
         lines = array("L")
-        for n, text in self.list_lines(path, key):
+        for n, text in self.list_lines(file, data):
             if len(text) > limit:
                 self.p.error(file, f"term longer than {limit} characters", n)
                 continue
@@ -477,19 +490,26 @@ class _FileReader:
             terms.append(text)
             keys.append(normalize_key(text, fold=fold))
             lines.append(n)
+        if cache is not None and len(self.p.errors) == errors_before:
+            cache.write(terms, keys, lines)
         return TermTable(terms, keys, lines, [(0, file, kind, case)])
 
-    def list_lines(self, path: Path, key: str) -> Iterator[tuple[int, str]]:
-        """(line number, content) of every non-blank, non-comment line of a list file."""
-        file = str(path)
+    def read_list(self, path: Path, key: str) -> bytes | None:
+        """The bytes of a list file, or None after reporting why they cannot be used."""
         data = _read_bounded(path, self.limits.max_list_bytes)
         if isinstance(data, str):
             self.err(key, f"list file {path} {data}")
-            return
-        self.layer.files.append(file)
+            return None
+        self.layer.files.append(str(path))
         if data.count(b"\n") >= self.limits.max_list_lines:
-            self.p.error(file, f"list has more than {self.limits.max_list_lines} lines (the limit)")
-            return
+            self.p.error(
+                str(path), f"list has more than {self.limits.max_list_lines} lines (the limit)"
+            )
+            return None
+        return data
+
+    def list_lines(self, file: str, data: bytes) -> Iterator[tuple[int, str]]:
+        """(line number, content) of every non-blank, non-comment line of a list file."""
         try:
             text = data.decode("utf-8")
         except UnicodeDecodeError as e:
@@ -504,6 +524,11 @@ class _FileReader:
             content = strip_comment(raw) if "#" in raw else raw.strip()
             if content:
                 yield n, content
+
+    def list_file(self, path: Path, key: str) -> Iterator[tuple[int, str]]:
+        data = self.read_list(path, key)
+        if data is not None:
+            yield from self.list_lines(str(path), data)
 
     def pairs(self, value: object) -> None:
         if not self.want("pairs", value, dict, "a table"):
@@ -524,7 +549,7 @@ class _FileReader:
 
     def read_pairs(self, path: Path, key: str) -> Iterator[PairEntry]:
         file = str(path)
-        for n, text in self.list_lines(path, key):
+        for n, text in self.list_file(path, key):
             parts = text.split("=>")
             if len(parts) != 2 or not parts[0].strip() or not parts[1].strip():
                 self.p.error(file, f"expected one pair 'old => new', got '{text}'", n)
@@ -557,7 +582,7 @@ class _FileReader:
             if path is None:
                 continue
             file = str(path)
-            for n, text in self.list_lines(path, key):
+            for n, text in self.list_file(path, key):
                 word = collapse_spaces(text)
                 self.layer.critical.append(
                     TermEntry(
@@ -908,6 +933,71 @@ def _pattern_checks() -> _PatternChecks | None:
     return checks
 
 
+class _TermListCache:
+    """A parsed term list kept in the private cache folder, keyed by the list's bytes.
+
+    Parsing a large list (comments, spaces, NFC and case folding of every line) is most
+    of the cost of loading a big ruleset; a list that parsed without a problem is stored
+    as columns (line numbers, terms, keys) and read back with a few splits. The key holds
+    everything the columns depend on: the list's SHA-256, the case policy, the term length
+    limit and the Unicode version of the normalization. Small lists are not worth a file.
+    """
+
+    MIN_LINES = 5_000
+    FORMAT = "guard-terms 1"
+
+    def __init__(self, data: bytes, fold: bool, limits: Limits) -> None:
+        from guard.ruleset.lexicon import cache_dir
+
+        self.folder = cache_dir() if data.count(b"\n") >= self.MIN_LINES else None
+        digest = hashlib.sha256(data)
+        digest.update(f"|{fold}|{limits.max_term_chars}|{unicodedata.unidata_version}".encode())
+        self.name = f"terms-{digest.hexdigest()[:32]}.txt"
+
+    def read(self) -> tuple[list[str], list[NormalizedText], array[int]] | None:
+        from guard.ruleset.lexicon import read_private
+
+        if self.folder is None:
+            return None
+        got = read_private(self.folder / self.name, self.FORMAT)
+        if got is None:
+            return None
+        fields, body = got
+        if len(fields) != 2 or not all(f.isdigit() for f in fields):
+            return None
+        n, size = int(fields[0]), int(fields[1])
+        lines = array("L")
+        width = lines.itemsize
+        lines.frombytes(body[: width * n])
+        if sys.byteorder != "little":
+            lines.byteswap()
+        try:
+            text = body[width * n :].decode("utf-8")
+        except UnicodeDecodeError:
+            return None
+        terms = text[:size].split("\n") if n else []
+        # keys were made by normalize_key when the list was parsed; the body's hash and
+        # the cache key (which holds the Unicode version) vouch that they still are its
+        keys = [NormalizedText(k) for k in text[size + 1 :].split("\n")] if n else []
+        if not len(terms) == len(keys) == len(lines) == n:
+            return None
+        return terms, keys, lines
+
+    def write(self, terms: list[str], keys: list[NormalizedText], lines: array[int]) -> None:
+        from guard.ruleset.lexicon import write_private
+
+        if self.folder is None or not terms:
+            return
+        column = array("L", lines)
+        if sys.byteorder != "little":
+            column.byteswap()
+        joined = "\n".join(terms)
+        body = column.tobytes() + (joined + "\n" + "\n".join(keys)).encode("utf-8")
+        write_private(
+            self.folder / self.name, self.FORMAT, [str(len(terms)), str(len(joined))], body
+        )
+
+
 # ------------------------------------------------------------------ the chain
 
 
@@ -918,11 +1008,13 @@ class _Resolver:
         limits: Limits,
         allow_outside: bool,
         lint: bool,
+        use_cache: bool,
     ) -> None:
         self.registry = registry
         self.limits = limits
         self.allow_outside = allow_outside
         self.lint = lint
+        self.use_cache = use_cache
         self.p = _Problems()
         self.parsed: dict[Path, _Layer | None] = {}
         self.order: list[_Layer] = []
@@ -931,7 +1023,13 @@ class _Resolver:
     def layer(self, path: Path) -> _Layer | None:
         if path not in self.parsed:
             reader = _FileReader(
-                path, self.p, self.registry, self.limits, self.allow_outside, self.lint
+                path,
+                self.p,
+                self.registry,
+                self.limits,
+                self.allow_outside,
+                self.lint,
+                use_cache=self.use_cache,
             )
             self.parsed[path] = reader.read()
         return self.parsed[path]
@@ -1251,13 +1349,17 @@ def resolve(
     allow_outside: bool = False,
     lint: bool = False,
     limits: Limits | None = None,
+    use_cache: bool = True,
 ) -> tuple[ResolvedRuleset | None, list[Problem], list[Problem]]:
-    """(resolved ruleset or None, errors, warnings): never raises for a ruleset's faults."""
+    """(resolved ruleset or None, errors, warnings): never raises for a ruleset's faults.
+
+    ``use_cache`` keeps large parsed term lists in the private cache folder (see
+    ``_TermListCache``; ``GUARD_NO_CACHE=1`` also turns it off)."""
     if registry is None:
         from guard.rules import REGISTRY
 
         registry = REGISTRY
-    res = _Resolver(registry, limits or Limits(), allow_outside, lint)
+    res = _Resolver(registry, limits or Limits(), allow_outside, lint, use_cache)
     if not refs:
         res.p.error("<rulesets>", "no ruleset named")
         return None, res.p.errors, res.p.warnings
@@ -1364,6 +1466,7 @@ def load_sources(
     allow_outside: bool = False,
     lint: bool = False,
     limits: Limits | None = None,
+    use_cache: bool = True,
 ) -> ResolvedRuleset:
     """Read, check and layer rulesets named by bundled name or path (several act as one).
 
@@ -1377,6 +1480,7 @@ def load_sources(
         allow_outside=allow_outside,
         lint=lint,
         limits=limits,
+        use_cache=use_cache,
     )
     if resolved is None:
         raise RulesetError(errors)

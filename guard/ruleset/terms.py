@@ -72,6 +72,8 @@ def _first_piece(key: str) -> tuple[str, int]:
     if key.isascii():
         if key.isalnum():
             return key, 1
+        if key.replace(" ", "").isalnum():  # plain words and single spaces (keys have no runs)
+            return key.partition(" ")[0], key.count(" ") + 1
         found = _ASCII_PIECE.findall(key)
     else:
         found = pieces(key)
@@ -304,9 +306,13 @@ class TermMatcher:
 
 
 def _firsts(keys: dict[str, int]) -> dict[str, int]:
-    """First piece -> the most pieces a term starting with it has."""
-    firsts: dict[str, int] = dict.fromkeys([k for k in keys if k.isascii() and k.isalnum()], 1)
-    for key in [k for k in keys if not (k.isascii() and k.isalnum())]:
+    """First piece -> the most pieces a term starting with it has.
+
+    Most keys are one plain ASCII word, their own first piece: they are taken in bulk,
+    and only the others (spaces, punctuation, other scripts) are cut into pieces.
+    """
+    firsts: dict[str, int] = dict.fromkeys(filter(str.isalnum, filter(str.isascii, keys)), 1)
+    for key in keys.keys() - firsts.keys():
         head, count = _first_piece(key)
         if firsts.get(head, 0) < count:
             firsts[head] = count

@@ -1,0 +1,66 @@
+"""Large parsed term lists are kept in the private cache folder and read back unchanged."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Mapping
+from pathlib import Path
+
+import pytest
+
+from guard.errors import RulesetError
+from guard.rules.base import Rule
+from guard.ruleset.load import load_sources
+
+Write = Callable[[dict[str, str | bytes]], Path]
+
+TOML = '[ruleset]\nname = "big"\nextends = []\n[[terms]]\nfile = "t.txt"\ncase = "fold"\n'
+
+
+def _big_list(n: int) -> str:
+    words = ["Straße", "İstanbul", "ﬁle", "bilge  pump", "C#", "Kettlewick"]
+    lines = [f"{words[i % len(words)]}{i}  # note {i}" if i % 7 else "" for i in range(n)]
+    return "# a large list\n" + "\n".join(lines) + "\n"
+
+
+def _cache_files(cache: Path) -> list[Path]:
+    return sorted(cache.glob("guard/terms-*.txt"))
+
+
+def test_a_large_list_is_cached_and_reads_back_the_same(
+    write: Write, registry: Mapping[str, Rule], private_cache: Path
+) -> None:
+    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
+    first = load_sources([root / "r"], registry=registry)
+    (cached,) = _cache_files(private_cache)
+    again = load_sources([root / "r"], registry=registry)
+    assert list(again.terms) == list(first.terms)
+    assert len(first.terms) == 6000 - len(range(0, 6000, 7))
+    entry = first.terms[0]
+    assert (entry.term, entry.key, entry.origin.line) == ("İstanbul1", "i̇stanbul1", 3)
+    uncached = load_sources([root / "r"], registry=registry, use_cache=False)
+    assert list(uncached.terms) == list(first.terms)
+    # a changed cache file is not trusted: the list is parsed again and the file rewritten
+    cached.write_bytes(cached.read_bytes()[:-3] + b"zzz")
+    assert list(load_sources([root / "r"], registry=registry).terms) == list(first.terms)
+    assert cached.read_bytes()[-3:] != b"zzz"
+
+
+def test_a_list_with_a_problem_is_never_cached(
+    write: Write, registry: Mapping[str, Rule], private_cache: Path
+) -> None:
+    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000) + "x" * 600 + "\n"})
+    with pytest.raises(RulesetError):
+        load_sources([root / "r"], registry=registry)
+    assert _cache_files(private_cache) == []
+
+
+def test_no_cache_env_turns_it_off(
+    write: Write,
+    registry: Mapping[str, Rule],
+    private_cache: Path,
+    monkeypatch: pytest.MonkeyPatch,
+) -> None:
+    monkeypatch.setenv("GUARD_NO_CACHE", "1")
+    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
+    load_sources([root / "r"], registry=registry)
+    assert _cache_files(private_cache) == []
