@@ -9,6 +9,8 @@ U+FB01 ﬁ -> "fi". Canonical equivalence of "é" and "e" + U+0301 is from UAX #
 from __future__ import annotations
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from guard.records import Origin
 from guard.ruleset.model import CasePolicy, TermEntry
@@ -135,3 +137,53 @@ def test_the_ascii_cut_agrees_with_the_unicode_cut(text: str) -> None:
     from guard.ruleset.terms import _ASCII_PIECE, pieces
 
     assert _ASCII_PIECE.findall(text) == pieces(text)
+
+
+_PARTS = ["Straße", "STRASSE", "İstanbul", "ﬁle", "file", "bilge", "pump", "東京", "XR-220", "é"]
+_TERMS = [entry("strasse"), entry("İstanbul"), entry("file"), entry("bilge pump")]
+_TERMS += [entry("東京", EXACT), entry("XR-220", EXACT)]
+
+
+@given(
+    st.lists(
+        st.one_of(
+            st.sampled_from(_PARTS),
+            st.sampled_from([" ", "  ", "\t", "\u00a0", ", ", "-", "e\u0301"]),
+            st.text(max_size=3),
+        ),
+        max_size=12,
+    )
+)
+@settings(max_examples=300, deadline=None)
+def test_every_hit_is_its_term_in_the_original_text(parts: list[str]) -> None:
+    text = "".join(parts)
+    m = TermMatcher(_TERMS)
+    hits = m.find(text)
+    last_end = 0
+    for h in hits:
+        assert last_end <= h.start < h.end <= len(text)  # ordered, not overlapping
+        last_end = h.end
+        found = " ".join(text[h.start : h.end].split())
+        fold = h.entry.case is CasePolicy.FOLD
+        assert normalize_key(found, fold=fold) == h.entry.key
+
+
+@given(
+    st.text(max_size=8),
+    st.sampled_from([("STRASSE", "strasse"), ("ﬁle", "file"), ("İSTANBUL", "İstanbul")]),
+    st.sampled_from([("Bilge\u00a0PUMP", "bilge pump"), ("XR-220", "XR-220"), ("東京", "東京")]),
+    st.text(max_size=8),
+)
+@settings(max_examples=300, deadline=None)
+def test_a_term_set_apart_by_spaces_is_always_found(
+    before: str, one: tuple[str, str], two: tuple[str, str], after: str
+) -> None:
+    text = f"{before} {one[0]} {two[0]} {after}"
+    start = len(before) + 1
+    expected = [
+        (start, start + len(one[0]), one[1]),
+        (start + len(one[0]) + 1, start + len(one[0]) + 1 + len(two[0]), two[1]),
+    ]
+    got = spans(_TERMS, text)
+    for hit in expected:
+        assert hit in got
