@@ -28,6 +28,7 @@ from guard.io.read import ErrorRecord, InputRecord, Limits
 from guard.records import Report, Verdict
 
 CRASHED = "the worker process checking this record died"
+TIMED_OUT = "the worker checking this record took too long and was stopped"
 NO_WORKERS = "not checked: worker processes kept dying at once; run with one job to see why"
 _MAX_DEAD_STARTS = 3
 
@@ -106,6 +107,7 @@ def check_records(
     checker_factory: CheckerFactory = guard_checker,
     chunk_size: int = 16,
     mp_context: str | None = None,
+    record_timeout: float | None = None,
 ) -> Iterator[Outcome]:
     """One outcome per record, in order.
 
@@ -113,7 +115,8 @@ def check_records(
     ``checker_factory`` when not given); with ``jobs > 1`` every worker builds its own
     with ``checker_factory(ruleset_refs)``. ``lang_default`` is the language of records
     that name none (None: the ruleset's first language). ``overrides`` are ruleset
-    settings by key path, passed to the factory.
+    settings by key path, passed to the factory. ``record_timeout`` (seconds, with
+    ``jobs > 1`` only) ends a worker stuck on one record and makes that record an error.
     """
     lim = limits or Limits()
     refs = tuple(ruleset_refs)
@@ -128,7 +131,8 @@ def check_records(
             else:
                 yield _outcome(record, _run(check, job))
         return
-    yield from _Pool(refs, jobs, checker_factory, chunk_size, mp_context).run(prepared)
+    pool = _Pool(refs, jobs, checker_factory, chunk_size, mp_context, record_timeout)
+    yield from pool.run(prepared)
 
 
 _Prepared = tuple[InputRecord | ErrorRecord, Job | None, str | None]
@@ -200,6 +204,7 @@ class _Pool:
     factory: CheckerFactory
     chunk_size: int
     mp_context: str | None
+    timeout: float | None  # seconds a record may take in a worker
     generation: int = 0
     executor: ProcessPoolExecutor | None = None
     produced: bool = False  # has the current pool returned any result?
@@ -266,15 +271,36 @@ class _Pool:
         self, chunk: list[_Prepared], future: Future[_Results] | None, generation: int
     ) -> _Results:
         if future is not None:
+            limit = None if self.timeout is None else self.timeout * len(chunk)
             try:
-                results = future.result()
+                results = future.result(timeout=limit)
             except BrokenProcessPool:
                 if generation == self.generation:
                     self._broken()
+            except TimeoutError:
+                self._stop_workers()
+                self._renew()
             else:
                 self._got_result()
                 return results
         return self._one_by_one(chunk)
+
+    def _stop_workers(self) -> None:
+        """End the current pool's processes: one of them is stuck on a record.
+
+        ProcessPoolExecutor offers no way to stop a running task before Python 3.14
+        (``terminate_workers``); before that, its worker processes are ended directly.
+        """
+        executor = self.executor
+        if executor is None:
+            return
+        terminate = getattr(executor, "terminate_workers", None)
+        if callable(terminate):
+            terminate()
+            return
+        processes = getattr(executor, "_processes", None) or {}
+        for process in list(processes.values()):
+            process.terminate()
 
     def _submit(self, jobs: list[Job | None]) -> Future[_Results] | None:
         for _ in range(2):
@@ -298,10 +324,14 @@ class _Pool:
                 out.append(NO_WORKERS)
                 continue
             try:
-                out.append(future.result()[0])
+                out.append(future.result(timeout=self.timeout)[0])
             except BrokenProcessPool:
                 out.append(CRASHED)
                 self._broken()
+            except TimeoutError:
+                out.append(f"{TIMED_OUT} ({self.timeout:g} s)")
+                self._stop_workers()
+                self._renew()
             else:
                 self._got_result()
         return out

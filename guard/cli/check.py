@@ -54,6 +54,7 @@ def command(
     output: str | None,
     fail_on: str,
     jobs: int,
+    record_timeout: float,
     input_format: str | None,
     fields: tuple[str, ...],
     max_record_bytes: int,
@@ -95,6 +96,7 @@ def command(
                 limits=inputs.limits,
                 overrides=inputs.overrides,
                 checker=inputs.checker,
+                record_timeout=record_timeout,
             )
             for outcome in common.tally(outcomes, summary, progress):
                 reporter.record(outcome)

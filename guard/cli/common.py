@@ -108,6 +108,16 @@ def lang_option(f: F) -> F:
 
 
 def jobs_option(f: F) -> F:
+    """``--jobs`` and ``--record-timeout`` (the time limit a worker process has per record)."""
+    f = click.option(
+        "--record-timeout",
+        type=click.FloatRange(min=0, min_open=True),
+        default=300.0,
+        show_default=True,
+        metavar="SECONDS",
+        help="With --jobs 2 or more: a worker stuck longer on one record is stopped, and "
+        "the record becomes an error record.",
+    )(f)
     return click.option(
         "--jobs",
         "-j",

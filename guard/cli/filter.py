@@ -50,6 +50,7 @@ def command(
     undo_flagged: bool,
     output: str | None,
     jobs: int,
+    record_timeout: float,
     input_format: str | None,
     fields: tuple[str, ...],
     max_record_bytes: int,
@@ -86,6 +87,7 @@ def command(
                 limits=inputs.limits,
                 overrides=inputs.overrides,
                 checker=inputs.checker,
+                record_timeout=record_timeout,
             )
             for outcome in common.tally(outcomes, summary):
                 if outcome.report is None:

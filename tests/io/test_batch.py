@@ -4,10 +4,20 @@ from __future__ import annotations
 
 import io
 import os
+import time
 
 import pytest
 
-from guard.batch import CRASHED, NO_WORKERS, Checker, Job, Outcome, Summary, check_records
+from guard.batch import (
+    CRASHED,
+    NO_WORKERS,
+    TIMED_OUT,
+    Checker,
+    Job,
+    Outcome,
+    Summary,
+    check_records,
+)
 from guard.io.read import ErrorRecord, InputRecord, Limits, read_records
 from guard.records import Report, Verdict
 
@@ -45,6 +55,8 @@ def crashing_factory(refs: tuple[str, ...]) -> Checker:
     raises on 'RAISE'. Module-level, so that worker processes can build it."""
 
     def check(job: Job) -> Report:
+        if job.source == "HANG":
+            time.sleep(3600)
         if job.source == "CRASH":
             os._exit(3)
         if job.source == "RAISE":
@@ -151,3 +163,21 @@ def test_workers_that_cannot_start_give_error_outcomes_not_an_endless_restart() 
     assert len(outcomes) == 10
     assert {o.error for o in outcomes} <= {CRASHED, NO_WORKERS}
     assert outcomes[-1].error == NO_WORKERS
+
+
+def test_a_worker_stuck_on_a_record_is_stopped_and_the_record_is_an_error() -> None:
+    hang = b'{"id": "h", "source": "HANG", "proposal": "hang"}'
+    lines = [LINES[1], hang, LINES[1], LINES[1], hang, LINES[1]]
+    outcomes = list(
+        check_records(
+            records(lines),
+            [],
+            jobs=2,
+            checker_factory=crashing_factory,
+            chunk_size=2,
+            mp_context="fork",
+            record_timeout=2,  # a limit that ends the wait, not a measurement
+        )
+    )
+    stopped = f"{TIMED_OUT} (2 s)"
+    assert [o.error for o in outcomes] == [None, stopped, None, None, stopped, None]
