@@ -25,7 +25,8 @@ from dataclasses import dataclass, field
 
 from guard.errors import RecordError
 from guard.io.read import ErrorRecord, InputRecord, Limits
-from guard.records import Report, Verdict
+from guard.records import Report, TokenKind, Verdict
+from guard.text.tokenize import spans
 
 CRASHED = "the worker process checking this record died"
 TIMED_OUT = "the worker checking this record took too long and was stopped"
@@ -83,9 +84,6 @@ def count_tokens(text: str, limit: int) -> int:
     >>> count_tokens("bilge pump XR-220", 100)
     3
     """
-    from guard.records import TokenKind
-    from guard.text.tokenize import spans
-
     n = 0
     for _, _, kind in spans(text):
         if kind is not TokenKind.SPACE:

@@ -24,7 +24,7 @@ from guard.batch import Outcome, Summary, check_records
 from guard.cli import common
 from guard.io.read import InputRecord
 from guard.io.write import atomic_output
-from guard.report.base import error_json
+from guard.report.base import error_json, visible
 from guard.report.jsonl import dumps
 
 
@@ -92,7 +92,9 @@ def command(
             for outcome in common.tally(outcomes, summary):
                 if outcome.report is None:
                     click.echo(
-                        f"guard filter: {outcome.record.where}: error: {outcome.error}", err=True
+                        f"guard filter: {visible(outcome.record.where)}: error: "
+                        f"{visible(outcome.error or '')}",
+                        err=True,
                     )
                 writer.write(outcome)
                 summary.written += 1

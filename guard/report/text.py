@@ -32,13 +32,14 @@ class TextReporter(Reporter):
         w = self.stream.write
         report = outcome.report
         if report is None:
-            w(f"{label(outcome)}: {self._paint('error', Verdict.VETO)}: {outcome.error}\n")
+            error = visible(outcome.error or "")
+            w(f"{visible(label(outcome))}: {self._paint('error', Verdict.VETO)}: {error}\n")
             return
         verdict = self._paint(report.verdict.value, report.verdict, bold=True)
         if not report.rewrites and not report.pair_findings:
-            w(f"{label(outcome)}: {verdict}, no change\n")
+            w(f"{visible(label(outcome))}: {verdict}, no change\n")
             return
-        w(f"{label(outcome)}: {verdict}\n")
+        w(f"{visible(label(outcome))}: {verdict}\n")
         for rv in report.rewrites:
             rw = rv.rewrite
             before, old, after = context(report.source, rw.start, rw.end)
