@@ -9,7 +9,9 @@ for any pair of strings (tested as properties over arbitrary Unicode):
 * ``apply(source, align(source, proposal)) == proposal``
 
 Alignment works on tokens (see :mod:`guard.text.tokenize`), with Levenshtein opcodes over
-the token sequences computed by rapidfuzz. In scripts written without spaces each
+the token sequences computed by rapidfuzz; changes that only whitespace separates are
+then aligned again word by word, with joins and splits as moves of their own, so that
+neighbouring joins do not borrow each other's words. In scripts written without spaces each
 grapheme cluster is a token, so a change inside Han or Thai text yields a rewrite of
 only the changed clusters. Only the region between the common prefix and suffix of the
 two texts (widened to whitespace) is tokenized: that keeps a one-word fix in a long
