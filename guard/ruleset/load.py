@@ -498,7 +498,8 @@ class _FileReader:
         """The bytes of a list file, or None after reporting why they cannot be used."""
         data = _read_bounded(path, self.limits.max_list_bytes)
         if isinstance(data, str):
-            self.err(key, f"list file {path} {data}")
+            shown = path.relative_to(self.folder) if path.is_relative_to(self.folder) else path
+            self.err(key, f"list file '{shown}' {data}")
             return None
         self.layer.files.append(str(path))
         if data.count(b"\n") >= self.limits.max_list_lines:

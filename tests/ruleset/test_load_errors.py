@@ -75,7 +75,7 @@ EXPECTED = [
     ("ruleset.toml", 3, "ruleset.extends[1]", "'../../outside.toml' leaves the ruleset's folder"),
     ("ruleset.toml", 4, "ruleset.languages[1]", "'english' is not a BCP 47 language tag"),
     ("ruleset.toml", 5, "ruleset.colour", "unknown key 'colour'"),
-    ("ruleset.toml", 8, "terms[0].file", "missing.txt not found"),
+    ("ruleset.toml", 8, "terms[0].file", "list file 'terms/missing.txt' not found"),
     ("terms/latin1.txt", 2, None, "not valid UTF-8: byte 0xe9 at column 4"),
     ("ruleset.toml", 12, "terms[1].case", "case must be 'exact' or 'fold'"),
     ("ruleset.toml", 15, "terms[2].file", "'../../etc/passwd' leaves the ruleset's folder"),
