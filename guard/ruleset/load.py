@@ -10,7 +10,9 @@ probably wrong) are returned beside the result, never raised.
 
 Safety: nothing here runs code from a ruleset (TOML is data; regexes are compiled, not
 evaluated); list paths and relative ``extends`` may not leave the ruleset's folder unless
-the caller allows it; chains are at most ``Limits.max_depth`` deep; lists are bounded.
+the caller allows it; chains are at most ``Limits.max_depth`` deep; files are bounded in
+size before they are read. Large parsed term lists are kept in the user's private cache
+folder as plain, hash-checked data (``_TermListCache``), never as pickles.
 """
 
 from __future__ import annotations
@@ -60,12 +62,16 @@ OVERRIDE_FILE = "<override>"
 """The origin file of settings given on the command line (``overrides``)."""
 
 COMMON_WORD_ZIPF = 5.0
-"""Lint: a protected term this common in a ruleset language blocks ordinary corrections."""
+"""Lint: a protected term this common in a ruleset language blocks ordinary corrections.
+Zipf 5 is a frequency of 100 per million words (the scale is log10 of frequency per
+billion words); the cut itself is a judgement (common practice, no source)."""
 
 _VERDICTS = ("accept", "flag", "veto")
 _ACTIONS = {"veto": Action.VETO, "flag": Action.FLAG, "off": None}
 _NAME_RE = re.compile(r"[A-Za-z0-9]+(?:-[A-Za-z0-9]+)*\Z")
 _KIND_RE = re.compile(r"[^\s]+\Z")
+# BCP 47 (RFC 5646) tags as rulesets use them: language, optional script, region and
+# variants. Extended language subtags, extensions and private use are not accepted.
 _LANG_RE = re.compile(
     r"(?P<lang>[A-Za-z]{2,3})(?:-(?P<script>[A-Za-z]{4}))?(?:-(?P<region>[A-Za-z]{2}|\d{3}))?"
     r"(?P<rest>(?:-(?:[A-Za-z0-9]{5,8}|\d[A-Za-z0-9]{3}))*)\Z"
