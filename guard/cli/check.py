@@ -65,6 +65,7 @@ def command(
     Exit 0: nothing at or above --fail-on; 1: something is; 2: usage or ruleset error;
     130: interrupted (the --output file is left as it was).
     """
+    common.check_output(output)
     inputs = common.open_inputs(
         files,
         rules=rules,

@@ -236,6 +236,19 @@ def open_inputs(
     )
 
 
+def check_output(output: str | None) -> None:
+    """A usage error, before anything is read, when ``--output`` cannot be written."""
+    if output is None or output == "-":
+        return
+    folder = os.path.dirname(os.path.abspath(output))
+    if os.path.isdir(output):
+        raise click.BadParameter(f"{output} is a folder", param_hint="--output")
+    if not os.path.isdir(folder):
+        raise click.BadParameter(f"no folder {folder}", param_hint="--output")
+    if not os.access(folder, os.W_OK | os.X_OK):
+        raise click.BadParameter(f"cannot write in {folder}", param_hint="--output")
+
+
 def load_checker(refs: Sequence[str], overrides: dict[str, object] | None = None) -> Checker:
     """The in-process checker, or every ruleset problem on stderr and exit 2."""
     try:

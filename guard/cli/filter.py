@@ -66,6 +66,7 @@ def command(
         raise click.UsageError(
             f"filter writes the format it reads, and the inputs mix {', '.join(formats)}"
         )
+    common.check_output(output)
     inputs = common.open_inputs(
         files,
         rules=rules,

@@ -315,3 +315,16 @@ def test_settings_reach_every_worker(tmp_path: Path, ruleset: str) -> None:
     args = [str(batch), "--rules", ruleset, "--format", "jsonl", "--jobs", "2"]
     _, out, _ = run([*args, "--set", "rules.protected-term.action=veto"])
     assert [json.loads(line)["verdict"] for line in out.splitlines()] == ["veto"] * 4
+
+
+@pytest.mark.parametrize("where", ["missing-folder", "a-folder"])
+def test_an_output_that_cannot_be_written_is_a_usage_error(
+    tmp_path: Path, ruleset: str, where: str
+) -> None:
+    if where == "missing-folder":
+        target, why = tmp_path / "no" / "r.txt", f"no folder {tmp_path / 'no'}"
+    else:
+        target, why = tmp_path, f"{tmp_path} is a folder"
+    code, out, err = run(["--rules", ruleset, "-o", str(target)], jsonl(ACCEPT))
+    assert (code, out) == (2, "")
+    assert err.endswith(f"\nError: Invalid value for --output: {why}\n")
