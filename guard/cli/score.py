@@ -38,6 +38,10 @@ from guard.io.write import atomic_output
 )
 @click.option("--output", "-o", metavar="FILE", help="Write the report here (atomically).")
 @click.option(
+    "--html", "html_output", metavar="FILE",
+    help="Also write the HTML report here (one run, two reports).",
+)  # fmt: skip
+@click.option(
     "--sweep",
     "sweep_spec",
     metavar="SETTING=START:STOP:STEP",
@@ -62,6 +66,7 @@ def command(
     undo_flagged: bool,
     fmt: str,
     output: str | None,
+    html_output: str | None,
     sweep_spec: str | None,
     examples: int,
     min_prevented: float | None,
@@ -111,6 +116,9 @@ def command(
     )
     with atomic_output(output) as stream:
         stream.write(FORMATS[fmt](report))
+    if html_output is not None:
+        with atomic_output(html_output) as stream:
+            stream.write(FORMATS["html"](report))
     for b in bad:
         click.echo(f"{b.file}:{b.line}: {b.reason}", err=True)
     missed = (
