@@ -2,8 +2,8 @@
 
 For each rewrite: what changed and where, its verdict, and every finding with its evidence
 and the ruleset file and line (or setting) it came from; findings an allowed pair set aside
-are told too. Then the pair's verdict and the guarded text. Exit 0, or 2 for a usage or
-ruleset error.
+are told too. Then the pair's verdict and the guarded text. Exit 0; 1 when the engine
+fails on the pair; 2 for a usage or ruleset error.
 """
 
 from __future__ import annotations
@@ -44,7 +44,11 @@ def command(
     """Explain, in words, the verdict on turning SOURCE into PROPOSAL."""
     refs = rules or common.default_rules()
     checker = common.load_checker(refs, common.parse_settings(settings))
-    report = checker(Job(source=source, proposal=proposal, lang=lang, score=score))
+    try:
+        report = checker(Job(source=source, proposal=proposal, lang=lang, score=score))
+    except Exception as e:  # the pair could not be judged: say why, do not show a traceback
+        click.echo(f"guard explain: the engine failed: {type(e).__name__}: {e}", err=True)
+        ctx.exit(common.EXIT_FAIL)
     for line in explain_lines(report):
         click.echo(line)
     ctx.exit(common.EXIT_OK)
