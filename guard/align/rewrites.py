@@ -162,24 +162,37 @@ def _regions(
     for blocks in groups:
         i1, j1 = blocks[0][0], blocks[0][2]
         i2, j2 = blocks[-1][1], blocks[-1][3]
-        if len(blocks) == 1 and (i2 - i1 <= 1 or j2 - j1 <= 1) and not _joinable(a, b, blocks[0]):
-            out.append((i1, i2, j1, j2))
-        elif (i2 - i1) * (j2 - j1) <= _REALIGN_LIMIT:
+        if _may_split_or_join(blocks, a_space, b_space) and (
+            (i2 - i1) * (j2 - j1) <= _REALIGN_LIMIT
+        ):
             out.extend(_realign(a, b, a_space, b_space, i1, i2, j1, j2))
-        else:  # too large to realign: keep rapidfuzz's blocks
+        else:  # rapidfuzz's blocks are already the rewrites
             out.extend((b1, b2, c1, c2) for b1, b2, c1, c2 in blocks)
     return out
 
 
 # Beyond this many token pairs a group keeps rapidfuzz's alignment (the realignment is
 # quadratic Python; real changes are a few tokens).
-_REALIGN_LIMIT = 1600
+_REALIGN_LIMIT = 400
+# A join whose letters differ in more than half is no join (the distance then counts 1).
+_JOIN_CUTOFF = 0.5
 
 
-def _joinable(a: Sequence[str], b: Sequence[str], block: Sequence[int]) -> bool:
-    """Whether a one-to-many block could hold a split or join worth realigning."""
-    i1, i2, j1, j2 = block
-    return (i2 - i1 == 1 and j2 - j1 >= 3) or (j2 - j1 == 1 and i2 - i1 >= 3)
+def _may_split_or_join(
+    blocks: Sequence[Sequence[int]], a_space: Sequence[bool], b_space: Sequence[bool]
+) -> bool:
+    """Whether realigning a group could change its rewrites.
+
+    Not when every block is one token for one (word-for-word fixes between unchanged
+    spaces), and not when no whitespace is involved (a split or join needs some: this
+    spares the scripts written without spaces).
+    """
+    if all(i2 - i1 == 1 and j2 - j1 == 1 for i1, i2, j1, j2 in blocks):
+        return False
+    if len(blocks) > 1:
+        return True  # the gaps between blocks are whitespace
+    i1, i2, j1, j2 = blocks[0]
+    return any(a_space[i1:i2]) or any(b_space[j1:j2])
 
 
 def _realign(
@@ -211,14 +224,22 @@ def _realign(
             cost[i][j] = c
             back[i][j] = (pi, pj, changed)
 
+    # The joined letters of 2 and 3 words starting at each position (None where the
+    # tokens there are not word, space, word...), computed once per side.
+    a_joins = [
+        (k, _words(a, a_space, i1 + i, i1 + min(i + k, n), k)) for i in range(n) for k in (3, 5)
+    ]
+    b_joins = [
+        (k, _words(b, b_space, j1 + j, j1 + min(j + k, m), k)) for j in range(m) for k in (3, 5)
+    ]
     for i in range(n + 1):
+        x = a[i1 + i] if i < n else None
+        x_space = i < n and a_space[i1 + i]
         for j in range(m + 1):
             c = cost[i][j]
             if c == inf:
                 continue
-            x = a[i1 + i] if i < n else None
             y = b[j1 + j] if j < m else None
-            x_space = i < n and a_space[i1 + i]
             y_space = j < m and b_space[j1 + j]
             if x is not None and y is not None:
                 if x == y:
@@ -231,17 +252,15 @@ def _realign(
                 relax(i + 1, j, i, j, c + (0.3 if x_space else 1.0), True)
             if y is not None:
                 relax(i, j + 1, i, j, c + (0.3 if y_space else 1.0), True)
-            if y is not None and not y_space:
-                for k in (3, 5):
-                    words = _words(a, a_space, i1 + i, i1 + min(i + k, n), k)
+            if y is not None and not y_space and i < n:
+                for k, words in a_joins[2 * i : 2 * i + 2]:
                     if words is not None:
-                        d = OSA.normalized_distance(words, y)
+                        d = OSA.normalized_distance(words, y, score_cutoff=_JOIN_CUTOFF)
                         relax(i + k, j + 1, i, j, c + k // 2 * 0.5 + 2 * d, True)
-            if x is not None and not x_space:
-                for k in (3, 5):
-                    words = _words(b, b_space, j1 + j, j1 + min(j + k, m), k)
+            if x is not None and not x_space and j < m:
+                for k, words in b_joins[2 * j : 2 * j + 2]:
                     if words is not None:
-                        d = OSA.normalized_distance(x, words)
+                        d = OSA.normalized_distance(x, words, score_cutoff=_JOIN_CUTOFF)
                         relax(i + 1, j + k, i, j, c + k // 2 * 0.5 + 2 * d, True)
     path: list[tuple[int, int, int, int]] = []  # changed steps, last first
     i, j = n, m
