@@ -89,7 +89,7 @@ _PATTERN = rf"""
 | (?P<sign>[\p{{S}}--[{_STARTERS}\p{{Regional_Indicator}}]]{_END})
 | (?P<cluster>(?=[[\w]&&[{_NOSPACE}]])\X)
 | (?P<elision>{_ELISION}{_END})
-| (?P<word>(?!www\.)(?>{_CHUNK})(?!{_LITERAL_NEXT}|['’]){_END})
+| (?P<word>(?!www\.)(?>{_CHUNK})(?!{_LITERAL_NEXT}){_END})
 | (?P<url>(?<![\w+.\-])(?:[A-Za-z][A-Za-z0-9+.\-]*://|www\.)[^\s<>"'`]*{_TAIL_STOP}{_END})
 | (?P<email>(?<![\w.+\-])[\w+\-]+(?:\.[\w+\-]+)*@[\w\-]+(?:\.[\w\-]+)+{_END})
 | (?P<path>
