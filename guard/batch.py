@@ -175,6 +175,29 @@ def _outcome(record: InputRecord | ErrorRecord, result: Report | str) -> Outcome
 _WORKER_CHECK: Checker | None = None
 
 
+def _start_method() -> str:
+    """fork where there is one: workers then inherit the lexicons the parent loaded, which
+    otherwise cost each worker seconds; the CLI runs no threads that fork could break."""
+    methods = multiprocessing.get_all_start_methods()
+    for method in ("fork", "forkserver", "spawn"):
+        if method in methods:
+            return method
+    return "spawn"
+
+
+def _warm_lexicons(refs: tuple[str, ...]) -> None:
+    """Load the word frequencies of the rulesets' languages once, before forking."""
+    from guard.api import load_ruleset
+    from guard.ruleset.lexicon import get_lexicon
+
+    try:
+        ruleset = load_ruleset(*refs)
+    except Exception:  # the factory reports ruleset errors in each worker
+        return
+    for lang in (*ruleset.languages, *ruleset.other_languages):
+        get_lexicon(lang)
+
+
 def _init_worker(factory: CheckerFactory, refs: tuple[str, ...]) -> None:
     global _WORKER_CHECK
     # Ctrl-C goes to the whole process group; only the main process decides what to do.
@@ -215,9 +238,9 @@ class _Pool:
             self.executor = None
         if not self.usable:
             return
-        method = self.mp_context or (
-            "forkserver" if "forkserver" in multiprocessing.get_all_start_methods() else "spawn"
-        )
+        method = self.mp_context or _start_method()
+        if method == "fork" and self.generation == 0:
+            _warm_lexicons(self.refs)
         self.executor = ProcessPoolExecutor(
             max_workers=self.jobs,
             mp_context=multiprocessing.get_context(method),

@@ -62,7 +62,7 @@ def compile_ruleset(resolved: ResolvedRuleset) -> CompiledRuleset:
         rules=resolved.rules,
         # The table is a Sequence[TermEntry] that makes entries on demand; model.py types
         # this field as a tuple, which would make every entry up front (see the note there).
-        terms=resolved.terms,  # type: ignore[arg-type]
+        terms=resolved.terms,
         patterns=resolved.patterns,
         blocked=_pair_table(resolved.blocked),
         allowed=_pair_table(resolved.allowed),

@@ -7,7 +7,7 @@ shared, unchanged, by every check, in any number of threads. Nothing here does I
 from __future__ import annotations
 
 import enum
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
@@ -168,7 +168,7 @@ class CompiledRuleset:
         languages: tuple[str, ...],
         other_languages: tuple[str, ...],
         rules: Mapping[str, RuleSettings],
-        terms: tuple[TermEntry, ...],
+        terms: Sequence[TermEntry],
         patterns: tuple[PatternEntry, ...],
         blocked: Mapping[tuple[str, str], PairEntry],
         allowed: Mapping[tuple[str, str], PairEntry],
