@@ -37,7 +37,11 @@ __all__ = [
 ]
 
 NormalizedText = NewType("NormalizedText", str)
-"""Text in NFC, case-folded when made with ``fold=True``; made only by :func:`normalize_key`."""
+"""NFC text, case-folded after when made with ``fold=True``; made only by :func:`normalize_key`.
+
+Folding can leave a few characters decomposed (U+01F0 ǰ folds to j + U+030C): a folded
+key is not always NFC, but every key is made the same way, so equal texts meet.
+"""
 
 # General category Cf, the UAX #9 bidi controls (all Cf today, named anyway so that the
 # intent survives), and the Default_Ignorable_Code_Point characters that are not Cf but
@@ -71,6 +75,8 @@ def normalize_key(text: str, *, fold: bool) -> NormalizedText:
     'Maße'
     >>> normalize_key("ı", fold=True)  # dotless i has no case partner to fold to
     'ı'
+    >>> normalize_key("\u01f0", fold=True) == "j\u030c"  # CaseFolding.txt 01F0; F; 006A 030C
+    True
     """
     composed = nfc(text)
     return NormalizedText(composed.casefold() if fold else composed)
