@@ -4,12 +4,14 @@
 #
 #   examples/tern-docs/run.sh [OUT_DIR] [SPELLER]
 #
-# OUT_DIR defaults to examples/tern-docs/out; SPELLER to pyspellchecker-d1 (pyspellchecker
-# at edit distance 1; any name that `guard propose --speller` takes: pyspellchecker at its
-# default distance 2 is slower, minutes rather than seconds on long unknown words). Set GUARD to the guard command if it is not on PATH.
+# OUT_DIR defaults to $TMPDIR/tern-docs (or /tmp/tern-docs). SPELLER defaults to
+# pyspellchecker-d1 (pyspellchecker at edit distance 1); any name that
+# `guard propose --speller` takes works. pyspellchecker at its default distance 2 is
+# slower: minutes rather than seconds, on long unknown words. Set GUARD to the guard
+# command if it is not on PATH.
 set -eu
 here=$(cd "$(dirname "$0")" && pwd)
-out=${1:-"$here/out"}
+out=${1:-"${TMPDIR:-/tmp}/tern-docs"}
 speller=${2:-pyspellchecker-d1}
 guard=${GUARD:-guard}
 mkdir -p "$out"

@@ -62,6 +62,7 @@ from guard.io.write import atomic_output
 def command(
     file: Path,
     rules: tuple[str, ...],
+    settings: tuple[str, ...],
     lang: str | None,
     undo_flagged: bool,
     fmt: str,
@@ -78,14 +79,15 @@ def command(
     from guard.api import Guard, load_ruleset
 
     refs = rules or common.default_rules()
+    overrides = common.parse_settings(settings)
     try:
         spec = parse_sweep(sweep_spec) if sweep_spec else None
     except ValueError as e:
         raise click.BadParameter(str(e), param_hint="--sweep") from e
     try:
-        guard = Guard(load_ruleset(*refs))
+        guard = Guard(load_ruleset(*refs, overrides=overrides))
         if spec is not None:
-            load_ruleset(*refs, overrides={spec.setting: spec.values[0]})
+            load_ruleset(*refs, overrides={**overrides, spec.setting: spec.values[0]})
     except RulesetError as e:
         for problem in e.problems:
             click.echo(str(problem), err=True)
@@ -101,7 +103,13 @@ def command(
         examples=examples,
     )
     points = (
-        run_sweep(inputs, spec, guard_factory(refs), undo_flagged=undo_flagged, errors=len(bad))
+        run_sweep(
+            inputs,
+            spec,
+            guard_factory(refs, overrides),
+            undo_flagged=undo_flagged,
+            errors=len(bad),
+        )
         if spec is not None
         else ()
     )

@@ -72,26 +72,31 @@ from guard.text.tokenize import tokenize
 
 @dataclass(frozen=True, slots=True, kw_only=True, order=True)
 class Edit:
-    """Source tokens ``[start, end)`` replaced by ``new`` (token texts)."""
+    """Source tokens ``[start, end)`` replaced by ``new`` (token texts).
+
+    ``at`` is the index of the first new token in the target, for showing the new text as
+    it was written; it takes no part in comparisons.
+    """
 
     start: int
     end: int
     new: tuple[str, ...]
+    at: int = field(default=-1, compare=False, repr=False)
 
 
 def _squash(tokens: Sequence[str]) -> str:
     return "".join(tokens)
 
 
-def _split(s1: int, s2: int, new: tuple[str, ...]) -> list[Edit]:
+def _split(s1: int, s2: int, d1: int, new: tuple[str, ...]) -> list[Edit]:
     """A change of source tokens [s1, s2) into ``new``, one edit per source token where it
     can: pair tokens up from the left, the rest one insertion or one deletion per token."""
     n, m = s2 - s1, len(new)
     pairs = min(n, m)
-    out = [Edit(start=s1 + k, end=s1 + k + 1, new=(new[k],)) for k in range(pairs)]
+    out = [Edit(start=s1 + k, end=s1 + k + 1, new=(new[k],), at=d1 + k) for k in range(pairs)]
     if m > n:
-        out.append(Edit(start=s1 + n, end=s1 + n, new=new[pairs:]))
-    out += [Edit(start=s1 + k, end=s1 + k + 1, new=()) for k in range(pairs, n)]
+        out.append(Edit(start=s1 + n, end=s1 + n, new=new[pairs:], at=d1 + pairs))
+    out += [Edit(start=s1 + k, end=s1 + k + 1, new=(), at=d1 + m) for k in range(pairs, n)]
     return out
 
 
@@ -128,11 +133,11 @@ def edits(
     out: set[Edit] = set()
     for s1, s2, d1, d2 in blocks:
         new = tuple(target[d1:d2])
-        split = _split(s1, s2, new)
+        split = _split(s1, s2, d1, new)
         if s2 - s1 == d2 - d1:
             out.update(split)
             continue
-        whole = Edit(start=s1, end=s2, new=new)
+        whole = Edit(start=s1, end=s2, new=new, at=d1)
         if sum(e in prefer for e in split) > (whole in prefer):
             out.update(split)
         else:
@@ -305,12 +310,13 @@ class RecordScore:
     verdicts: Counter[Verdict]
 
 
-def _text_of(edit: Edit | None, tokens: Sequence[Token], index: int, insertion: bool) -> str:
-    if edit is not None:
-        return " ".join(edit.new)
-    if insertion:
+def _written(edit: Edit, text: str, tokens: Sequence[Token]) -> str:
+    """The new tokens of ``edit`` as written in ``text`` (with their spaces)."""
+    if not edit.new:
         return ""
-    return tokens[index].text
+    if edit.at >= 0 and edit.at + len(edit.new) <= len(tokens):
+        return text[tokens[edit.at].start : tokens[edit.at + len(edit.new) - 1].end]
+    return " ".join(edit.new)
 
 
 def score_record(
@@ -327,8 +333,10 @@ def score_record(
     guarded = report.guarded_text(undo_flagged=undo_flagged)
     src = words_of(source)
     src_texts = [t.text for t in src]
-    gold_edits = edits(src_texts, [t.text for t in words_of(gold)])
-    sp_edits = edits(src_texts, [t.text for t in words_of(proposal)], prefer=gold_edits)
+    gold_tokens = words_of(gold)
+    proposal_tokens = words_of(proposal)
+    gold_edits = edits(src_texts, [t.text for t in gold_tokens])
+    sp_edits = edits(src_texts, [t.text for t in proposal_tokens], prefer=gold_edits)
     gu_edits = (
         sp_edits
         if guarded == proposal
@@ -360,18 +368,18 @@ def score_record(
         if undone and rv is None:
             rules = ("(unattributed)",)
         g = gold_at[j.index] if (not j.insertion and j.index < n) else None
-        gold_text = (
-            token_text
-            if j.outcome is Outcome.OVERCORRECTION
-            else (" ".join(g.new) if g is not None else _text_of(j.edit, src, j.index, j.insertion))
-        )
+        said = _written(j.edit, proposal, proposal_tokens) if j.edit is not None else token_text
+        if j.outcome is Outcome.OVERCORRECTION:
+            gold_text = token_text
+        else:
+            gold_text = _written(g, gold, gold_tokens) if g is not None else said
         events.append(
             TokenEvent(
                 id=id,
                 lang=lang,
                 outcome=j.outcome,
                 source=token_text,
-                proposal=_text_of(j.edit, src, j.index, j.insertion),
+                proposal=said,
                 gold=gold_text,
                 undone=undone,
                 verdict=rv.verdict if rv is not None else None,

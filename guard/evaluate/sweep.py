@@ -9,7 +9,7 @@ and scores them, so that an owner sees the whole curve instead of guessing.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from decimal import Decimal, InvalidOperation
 from pathlib import Path
@@ -74,12 +74,14 @@ CheckerFactory = Callable[[str, "int | float"], Callable[[str, str, str, "float 
 """Builds a checker for (setting, value)."""
 
 
-def guard_factory(refs: Sequence[str | Path]) -> CheckerFactory:
-    """A factory that loads ``refs`` with one override and checks with a Guard."""
+def guard_factory(
+    refs: Sequence[str | Path], overrides: Mapping[str, object] | None = None
+) -> CheckerFactory:
+    """A factory that loads ``refs`` with ``overrides`` and the swept setting over them."""
     from guard.api import Guard, load_ruleset
 
     def make(setting: str, value: int | float) -> Callable[[str, str, str, float | None], Report]:
-        guard = Guard(load_ruleset(*refs, overrides={setting: value}))
+        guard = Guard(load_ruleset(*refs, overrides={**(overrides or {}), setting: value}))
 
         def check(source: str, proposal: str, lang: str, score: float | None) -> Report:
             return guard.check(source, proposal, lang=lang, score=score)
