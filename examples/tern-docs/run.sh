@@ -35,7 +35,7 @@ done
     --output "$out/score-tern.txt" --html "$out/score-tern.html"
 
 echo "== base ruleset"
-sed -n '1,16p' "$out/score-base.txt"
+sed -n '1,17p' "$out/score-base.txt"
 echo
 echo "== base + Tern Labs terms (full report: $out/score-tern.txt, $out/score-tern.html)"
 cat "$out/score-tern.txt"
