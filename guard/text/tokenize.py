@@ -9,7 +9,7 @@ What a token is:
 * Literal tokens are kept whole: URLs (``scheme://…``, ``www.…``), e-mail addresses,
   file paths (``/usr/local/bin``, ``./x``, ``~/x``, ``C:\dir\file``, ``dir/file.ext``),
   numbers with decimal marks and an attached unit (``12``, ``3.5mm``, ``1,000.5``,
-  ``10%``, ``-4``), ``@handles``, ``#tags``, identifiers (``snake_case``,
+  ``10%``, ``-4``, ``5mg/kg``), ``@handles``, ``#tags``, identifiers (``snake_case``,
   ``camelCase``, ``PascalCase``, ``dotted.names``, ``name()``), option flags (``-v``,
   ``--dry-run``, ``--color=auto``) and codes that mix letters and digits (``XR-220``,
   ``A4``, ``H2O``, ``v2.3.1``).
@@ -90,6 +90,7 @@ _PATTERN = rf"""
 | (?P<cluster>(?=[[\w]&&[{_NOSPACE}]])\X)
 | (?P<elision>{_ELISION}{_END})
 | (?P<word>(?!www\.)(?>{_CHUNK})(?!{_LITERAL_NEXT}){_END})
+| (?P<measure>(?<![\w.,])\d+(?:[.,]\d+)*\p{{L}}+(?:/\p{{L}}+){{1,2}}(?![\w/]){_END})
 | (?P<url>(?<![\w+.\-])(?:[A-Za-z][A-Za-z0-9+.\-]*://|www\.)[^\s<>"'`]*{_TAIL_STOP}{_END})
 | (?P<email>(?<![\w.+\-])[\w+\-]+(?:\.[\w+\-]+)*@[\w\-]+(?:\.[\w\-]+)+{_END})
 | (?P<path>
@@ -127,6 +128,7 @@ _GROUP_KIND = {
     "hashtag": TokenKind.HASHTAG,
     "flag": TokenKind.FLAG,
     "number": TokenKind.NUMBER,
+    "measure": TokenKind.NUMBER,  # 5mg/kg, 2km/h
     "elision": TokenKind.WORD,
     "mark": TokenKind.PUNCT,
     "sign": TokenKind.SYMBOL,

@@ -47,6 +47,18 @@ LITERALS = [
     pytest.param("add ½ cup", "½", K.NUMBER, id="number-vulgar-fraction"),  # U+00BD is No
     pytest.param("area in m² here", "²", K.NUMBER, id="number-superscript"),  # U+00B2 is No
     pytest.param("use 2,5 ml", "2,5", K.NUMBER, id="number-decimal-comma"),
+    pytest.param("dose 5mg/kg daily", "5mg/kg", K.NUMBER, id="number-unit-per-unit"),
+    pytest.param("at +5 now", "+5", K.NUMBER, id="number-plus"),
+    pytest.param("at \u22123 now", "\u22123", K.NUMBER, id="number-minus-sign"),  # U+2212
+    pytest.param("on 2031-01-05 now", "2031-01-05", K.NUMBER, id="number-date"),
+    pytest.param("mail ops+alerts@example.org", "ops+alerts@example.org", K.EMAIL, id="email-plus"),
+    pytest.param(
+        "see https://x.example/a?b=1&c=2#top now",
+        "https://x.example/a?b=1&c=2#top",
+        K.URL,
+        id="url-query-fragment",
+    ),
+    pytest.param("call __init__ now", "__init__", K.IDENTIFIER, id="dunder"),
     pytest.param("ask @pump_team now", "@pump_team", K.HANDLE, id="handle"),
     pytest.param("tag #release2 now", "#release2", K.HASHTAG, id="hashtag"),
     pytest.param("call read_config here", "read_config", K.IDENTIFIER, id="snake-case"),
@@ -82,6 +94,8 @@ WORDS = [
     pytest.param("iPhone", ["iPhone"], id="short-first-hump-is-word"),
     pytest.param("Hello, world!", ["Hello", ",", "world", "!"], id="punctuation-apart"),
     pytest.param("and/or", ["and", "/", "or"], id="slash-without-extension-is-not-path"),
+    pytest.param("issue #1", ["issue", "#", "1"], id="number-sign-is-no-tag"),
+    pytest.param("ratio 1:2", ["ratio", "1", ":", "2"], id="ratio"),
     pytest.param("שלום עולם", ["שלום", "עולם"], id="hebrew"),
     pytest.param("مرحبا بالعالم", ["مرحبا", "بالعالم"], id="arabic"),
     pytest.param("Привет мир", ["Привет", "мир"], id="cyrillic"),
