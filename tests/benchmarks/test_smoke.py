@@ -24,7 +24,10 @@ BENCH = Path(__file__).resolve().parents[2] / "benchmarks"
 EXPECTED = {
     "api.changed.median": "changed query pairs through the API: median",
     "api.changed.p99": "changed query pairs through the API: p99",
+    "api.changed.cpu.median": "changed pairs, median on the thread's CPU clock",
+    "api.changed.cpu.p99": "changed pairs, p99 on the thread's CPU clock",
     "api.unchanged": "unchanged pairs, the fast path",
+    "api.unchanged.cpu": "unchanged pairs, CPU time",
     "api.mixed": "mixed traffic, 70% unchanged",
     "naive.changed": "the naive post-filter floor",
     "ratio.guard_over_naive": "the guard against the floor",
