@@ -34,8 +34,8 @@ class Shape(enum.StrEnum):
 
     LOWER = "lower"  # every cased letter is lower case: "pump"
     TITLE = "title"  # one capital then lower case, in each part: "Pump", "Jean-Luc", "A"
-    ALLCAPS = "allcaps"  # two or more cased letters, all capitals: "NASA", "XR-220", "U.S"
-    INTERNAL_CAP = "internal-cap"  # a capital after a lower-case letter: "iPhone", "McName"
+    ALLCAPS = "allcaps"  # two or more cased letters, all capitals: "ZKTL", "XR-220", "U.S"
+    INTERNAL_CAP = "internal-cap"  # a capital after a lower-case letter: "iPump", "McName"
     NOCASE = "nocase"  # no cased letter at all: "42", "東京", "שלום"
 
 

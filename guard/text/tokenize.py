@@ -24,7 +24,7 @@ What a token is:
   alignment there works grapheme by grapheme.
 * Identifiers by shape: camelCase needs two lower-case letters before the first
   capital, PascalCase a first part of three letters or more (``PumpController``,
-  ``HTTPServer``), so ``iPhone`` or ``McName`` stay words (their shape still says
+  ``HTTPServer``), so ``iPump`` or ``McName`` stay words (their shape still says
   internal capital, see :mod:`guard.text.shape`).
 * Whitespace runs are SPACE tokens; any other character is a PUNCT, SYMBOL or (for
   ½, ², Ⅻ) NUMBER token of one grapheme cluster.
