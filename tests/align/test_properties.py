@@ -17,7 +17,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from guard.align import align, apply
-from guard.records import RewriteKind
+from guard.records import Refinement, RewriteKind
 from guard.text.tokenize import tokenize
 
 PIECES = [
@@ -164,3 +164,22 @@ def test_rewrite_tokens_are_the_texts_own_tokens(pair: tuple[str, str]) -> None:
     for r in align(source, proposal):
         assert set(r.old_tokens) <= source_tokens
         assert set(r.new_tokens) <= proposal_tokens
+
+
+WORDS = st.lists(st.text(alphabet="abcdefgh", min_size=1, max_size=6), min_size=2, max_size=8)
+
+
+@settings(max_examples=1000, deadline=None)
+@given(WORDS, st.data())
+def test_one_space_less_is_one_join_and_back_one_split(
+    words: list[str], data: st.DataObject
+) -> None:
+    # definition of the kinds (guard.records.RewriteKind): same letters, n tokens to 1
+    i = data.draw(st.integers(0, len(words) - 2))
+    source = " ".join(words)
+    proposal = " ".join([*words[:i], words[i] + words[i + 1], *words[i + 2 :]])
+    (join,) = align(source, proposal)
+    assert (join.kind, join.refinement) == (RewriteKind.JOIN, Refinement.SPACING)
+    assert join.old.replace(" ", "") == join.new
+    (split,) = align(proposal, source)
+    assert (split.kind, split.refinement) == (RewriteKind.SPLIT, Refinement.SPACING)
