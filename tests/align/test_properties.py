@@ -68,6 +68,10 @@ PIECES = [
     "\r\n",
     "\u00a0",
     "\u3000",
+    "\ud800",  # a lone surrogate: not text, but a Python str can hold one
+    "5mg/kg",
+    "C:\\x\\y.txt",
+    "🇫🇷🇫",
 ]
 SMALL_EDITS = [" ", "-", "e", "\u0301", "\u200d", "X", "字", "ั", "'", "s", "1", ""]
 
