@@ -138,14 +138,19 @@ def jsonl_mix(tmp_path_factory: pytest.TempPathFactory) -> Path:
     return path
 
 
+def _as_given(path: Path, tmp_path: Path, compressed: bool) -> Path:
+    if not compressed:
+        return path
+    packed = tmp_path / (path.name + ".gz")
+    packed.write_bytes(gzip.compress(path.read_bytes()))
+    return packed
+
+
 @pytest.mark.parametrize("compressed", [False, True], ids=["plain", "gzip"])
 def test_check_answers_every_jsonl_line_in_order(
     jsonl_mix: Path, tmp_path: Path, compressed: bool
 ) -> None:
-    path = jsonl_mix
-    if compressed:
-        path = tmp_path / "mix.jsonl.gz"
-        path.write_bytes(gzip.compress(jsonl_mix.read_bytes()))
+    path = _as_given(jsonl_mix, tmp_path, compressed)
     code, out, err = _run(check_command, [str(path), "--rules", "base", "--format", "jsonl"])
     _assert_jsonl_answers(out, JSONL_MIX, str(path), "verdict")
     _assert_reconciles(err, JSONL_MIX)
@@ -156,10 +161,7 @@ def test_check_answers_every_jsonl_line_in_order(
 def test_filter_answers_every_jsonl_line_in_order(
     jsonl_mix: Path, tmp_path: Path, compressed: bool
 ) -> None:
-    path = jsonl_mix
-    if compressed:
-        path = tmp_path / "mix.jsonl.gz"
-        path.write_bytes(gzip.compress(jsonl_mix.read_bytes()))
+    path = _as_given(jsonl_mix, tmp_path, compressed)
     code, out, err = _run(filter_command, [str(path), "--rules", "base"])
     _assert_jsonl_answers(out, JSONL_MIX, str(path), "guarded")
     _assert_reconciles(err, JSONL_MIX)
