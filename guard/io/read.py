@@ -637,6 +637,13 @@ def _table(
             return
         text, why = (None, line.error) if line.data is None else _decode(line)
         if text is None:
+            if header is None and header_error is None:
+                # The first line is the header even when it cannot be read; taking the
+                # next line for it would turn a data row into field names.
+                header_error = f"the header cannot be read: {why}"
+                pending, in_quote = [], False
+                continue
+            emitted += 1  # a row after the header: the header's problem needs no record
             if pending:
                 yield err(
                     pending_start,

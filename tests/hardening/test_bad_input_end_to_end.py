@@ -347,3 +347,35 @@ def test_sigint_mid_run_leaves_the_old_report_or_a_complete_new_one(
         lines = report.read_text().splitlines()
         assert [json.loads(line)["id"] for line in lines] == list(range(n))
         assert started is None or "interrupted" not in text
+
+
+@pytest.mark.parametrize("fmt", ["csv", "tsv"])
+def test_a_header_that_cannot_be_read_is_still_the_header(tmp_path: Path, fmt: str) -> None:
+    """A spreadsheet export in Latin-1: the header line is not UTF-8. The next line is a
+    data row, not the header, and every row says why it cannot be read, in line order
+    (found by fuzz/fuzz_reader.py: the next row used to become the header, and a header
+    problem was told after the rows below it)."""
+    sep = b"," if fmt == "csv" else b"\t"
+    path = tmp_path / f"latin1.{fmt}"
+    path.write_bytes(
+        sep.join([b"id", b"source", b"proposal", b"gr\xf6\xdfe"]) + b"\n"
+        + sep.join([b"1", b"teh pump", b"the pump", b"2"]) + b"\n"
+        + b"\xff\n"
+        + sep.join([b"3", b"teh anchor", b"the anchor", b"1"]) + b"\n"
+    )  # fmt: skip
+    code, out, err = _run(check_command, [str(path), "--rules", "base", "--format", "jsonl"])
+    errors = [json.loads(text)["error"] for text in out.splitlines()]
+    assert [(e["line"], e["reason"].split(":")[0]) for e in errors] == [
+        (2, "the header cannot be read"),
+        (3, "invalid UTF-8 at byte 1 of the line"),
+        (4, "the header cannot be read"),
+    ]
+    assert _tally(err) == (3, 3, 0, 3)
+    assert code == 1
+
+    empty = tmp_path / f"header-only.{fmt}"
+    empty.write_bytes(b"gr\xf6\xdfe" + sep + b"x\n")
+    _, out, err = _run(check_command, [str(empty), "--rules", "base", "--format", "jsonl"])
+    (only,) = [json.loads(text)["error"] for text in out.splitlines()]
+    assert only["line"] == 1 and only["reason"].startswith("the header cannot be read")
+    assert _tally(err) == (1, 1, 0, 1)
