@@ -1,8 +1,12 @@
 """How fast is the guard in front of a live speller? One table, one command.
 
-    .venv/bin/python benchmarks/run.py            # the full run (about 5 minutes, 2 cores)
-    .venv/bin/python benchmarks/run.py --smoke    # small sizes, well under a minute (CI)
+    .venv/bin/python benchmarks/run.py            # the full run
+    .venv/bin/python benchmarks/run.py --smoke    # small sizes, for CI: about 30 s
     .venv/bin/python benchmarks/run.py --profile  # also profile the changed-pair path
+
+The full run takes about 5 minutes on a quiet 2-core machine once the guard meets its
+targets; until then ``guard filter`` on 200k records dominates it (``--filter-records``
+makes that file smaller, and the table says how many records it used).
 
 The script builds its workload from a seed (benchmarks/workload.py), in a private
 temporary folder it deletes at the end, and prints one table: each figure's median with
