@@ -876,8 +876,9 @@ def _run(
 
     print(f"guard benchmark, {sz.name} sizes, {when}")
     print(f"machine: {machine()}")
+    warn = "  -- a busy machine: wall-clock figures are inflated, read the CPU ones"
     print(f"load average (1 min) at start {load_at_start:.2f}, at end {_load():.2f}"
-          + ("  -- a busy machine: wall-clock figures are inflated" if busy else ""))
+          + (warn if busy else ""))
     print(
         f"workload: seed {wl.SEED}, {sz.terms:,}-term ruleset (+ base), "
         f"{sz.pairs_per_repeat:,} pairs per API case per repeat, "
