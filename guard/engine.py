@@ -26,7 +26,7 @@ class _Active:
 class Engine:
     """Checks pairs against one compiled ruleset."""
 
-    __slots__ = ("_pair_rules", "_rewrite_rules", "ruleset")
+    __slots__ = ("_by_lang", "_pair_rules", "_rewrite_rules", "ruleset")
 
     def __init__(self, ruleset: CompiledRuleset) -> None:
         self.ruleset = ruleset
@@ -37,6 +37,19 @@ class Engine:
         ]
         self._rewrite_rules = tuple(a for a in active if a.rule.scope is Scope.REWRITE)
         self._pair_rules = tuple(a for a in active if a.rule.scope is Scope.PAIR)
+        self._by_lang: dict[str, tuple[tuple[_Active, ...], tuple[_Active, ...]]] = {}
+
+    def _rules_for(self, lang: str) -> tuple[tuple[_Active, ...], tuple[_Active, ...]]:
+        """The active rules with settings resolved for ``lang`` (built once per language;
+        a racing thread at worst builds the same tuple twice)."""
+        got = self._by_lang.get(lang)
+        if got is None:
+            got = (
+                tuple(_Active(a.rule, a.settings.for_lang(lang)) for a in self._rewrite_rules),
+                tuple(_Active(a.rule, a.settings.for_lang(lang)) for a in self._pair_rules),
+            )
+            self._by_lang[lang] = got
+        return got
 
     def check(
         self, source: str, proposal: str, *, lang: str | None = None, score: float | None = None
@@ -77,12 +90,14 @@ class Engine:
             ruleset=rs,
             lexicon=rs.lexicon(lang),
         )
+        rewrite_rules, pair_rules = self._rules_for(lang)
         per_rewrite: dict[int, list[Finding]] = defaultdict(list)
         for rw in rewrites:
-            for a in self._rewrite_rules:
-                per_rewrite[rw.index].extend(a.rule.check(rw, ctx, a.settings))
+            found = per_rewrite[rw.index]
+            for a in rewrite_rules:
+                found.extend(a.rule.check(rw, ctx, a.settings))
         pair_findings: list[Finding] = []
-        for a in self._pair_rules:
+        for a in pair_rules:
             pair_findings.extend(a.rule.check(None, ctx, a.settings))
         verdicts = decide(rewrites, per_rewrite, pair_findings, rs)
         return Report(

@@ -96,13 +96,28 @@ class RuleSettings:
 
     def option(self, key: str, lang: str | None = None) -> object:
         """The value of ``key`` for ``lang`` (its primary subtag), else the general value."""
-        if lang:
+        if lang and self.per_lang:
             primary = lang.split("-", 1)[0].lower()
             for tag in (lang, primary):
                 over = self.per_lang.get(tag)
                 if over is not None and key in over:
                     return over[key]
         return self.options[key]
+
+    def for_lang(self, lang: str) -> RuleSettings:
+        """These settings with ``lang``'s overrides folded in: the engine resolves them
+        once per language instead of on every option lookup."""
+        if not self.per_lang:
+            return self
+        options = {key: self.option(key, lang) for key in self.options}
+        origins = dict(self.origins)
+        for key in self.options:
+            origin = self.origin_of(key, lang)
+            if origin is not None:
+                origins[key] = origin
+        return RuleSettings(
+            name=self.name, action=self.action, options=options, per_lang={}, origins=origins
+        )
 
     def origin_of(self, key: str, lang: str | None = None) -> Origin | None:
         if lang:
@@ -143,20 +158,20 @@ class CompiledRuleset:
     """
 
     __slots__ = (
-        "name",
+        "_lexicons",
+        "_matcher",
+        "allowed",
+        "blocked",
+        "critical",
         "description",
+        "examples",
         "files",
         "languages",
+        "name",
         "other_languages",
+        "patterns",
         "rules",
         "terms",
-        "patterns",
-        "blocked",
-        "allowed",
-        "critical",
-        "examples",
-        "_matcher",
-        "_lexicons",
     )
 
     def __init__(
