@@ -25,6 +25,7 @@ speller would fix and a few rewrites the guard refuses.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import json
 import os
 import platform
@@ -37,11 +38,39 @@ import time
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import IO
 
-_WORDS = (
-    "the pump housing ships from depot four on monday with a spare gasket and two "
-    "bolts the valve seat needs a new seal before the pressure test at noon"
-).split()
+_WORDS = [
+    "the",
+    "pump",
+    "housing",
+    "ships",
+    "from",
+    "depot",
+    "four",
+    "on",
+    "monday",
+    "with",
+    "a",
+    "spare",
+    "gasket",
+    "and",
+    "two",
+    "bolts",
+    "the",
+    "valve",
+    "seat",
+    "needs",
+    "a",
+    "new",
+    "seal",
+    "before",
+    "the",
+    "pressure",
+    "test",
+    "at",
+    "noon",
+]
 _TYPOS = {
     "the": "teh",
     "pump": "pmup",
@@ -98,27 +127,24 @@ class Sample:
     workers_rss_kib: int
 
 
-def feed(pipe: object, total: int, seed: int, bad_every: int, progress: Progress) -> None:
+def feed(out: IO[bytes], total: int, seed: int, bad_every: int, progress: Progress) -> None:
     rng = random.Random(seed)
-    out = pipe  # a binary stream
     try:
         batch: list[bytes] = []
         for i in range(total):
             batch.append(make_record(i, rng, bad_every))
             if len(batch) == 256:
-                out.write(b"".join(batch))  # type: ignore[attr-defined]
+                out.write(b"".join(batch))
                 progress.written += len(batch)
                 batch = []
         if batch:
-            out.write(b"".join(batch))  # type: ignore[attr-defined]
+            out.write(b"".join(batch))
             progress.written += len(batch)
     except BrokenPipeError:
         progress.problems.append(f"guard closed its input after {progress.written} records")
     finally:
-        try:
-            out.close()  # type: ignore[attr-defined]
-        except BrokenPipeError:
-            pass
+        with contextlib.suppress(BrokenPipeError):
+            out.close()
 
 
 def check_output(
@@ -224,9 +250,7 @@ def run(total: int, jobs: int, rules: str, seed: int, bad_every: int) -> int:
     while not progress.done_reading.wait(1.0):
         rss, hwm = status_kib(proc.pid)
         workers = sum(status_kib(c)[0] for c in children(proc.pid))
-        samples.append(
-            Sample(time.monotonic() - started, progress.read, rss, hwm, workers)
-        )
+        samples.append(Sample(time.monotonic() - started, progress.read, rss, hwm, workers))
         if samples[-1].elapsed > 0 and len(samples) % 60 == 0:
             print(
                 f"  {samples[-1].elapsed:7.0f} s  {progress.read:>9} records out  "
@@ -261,7 +285,9 @@ def report(
 ) -> int:
     expected_errors = total // bad_every if bad_every else 0
     print(f"guard filter soak: {total} records, --jobs {jobs}, {time.strftime('%Y-%m-%d')}")
-    print(f"machine: {platform.machine()}, {os.cpu_count()} cores, Python {platform.python_version()}")
+    print(
+        f"machine: {platform.machine()}, {os.cpu_count()} cores, Python {platform.python_version()}"
+    )
     print(f"time: {elapsed:.0f} s ({total / elapsed:.0f} records/s); exit code {code}")
     print()
     print("| input done | records out | seconds | RSS MiB | peak RSS MiB | workers RSS MiB |")
