@@ -402,7 +402,7 @@ def _jsonl(
         except RecursionError:
             reason = "JSON nested too deeply"
         except json.JSONDecodeError as e:
-            reason = f"not valid JSON: {e.msg} at column {e.colno}"
+            reason = f"not valid JSON: {e.msg.removesuffix(' at')} at column {e.colno}"
         else:
             yield _from_mapping(value, display, number, names, lim, text)
             continue

@@ -47,7 +47,7 @@ def reasons(records: list[Record]) -> list[str | None]:
         ),
         (
             b'{"source": "a\x00b", "proposal": "x"}',
-            "not valid JSON: Invalid control character at at column 14",
+            "not valid JSON: Invalid control character at column 14",
         ),
         (b"[1, 2]", "not a JSON object (got an array)"),
         (b'"just text"', "not a JSON object (got a string)"),
