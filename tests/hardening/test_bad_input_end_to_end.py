@@ -341,7 +341,8 @@ def test_sigint_mid_run_leaves_the_old_report_or_a_complete_new_one(
         )
         assert m is not None, text
         read, written, checked = map(int, m.groups())
-        assert 0 < read == written == checked < n
+        # the signal may land between counting a record and writing it out
+        assert 0 < read == checked < n and written in (read - 1, read)
     else:  # the run finished before the signal landed: the new report is whole
         assert proc.returncode in (0, 1), text
         lines = report.read_text().splitlines()
