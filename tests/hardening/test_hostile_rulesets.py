@@ -396,9 +396,27 @@ def _terms(root: Path) -> set[str]:
     return {e.term.rstrip("0123456789") for e in load_ruleset(root / "r").terms}
 
 
+_AS_ROOT = hasattr(os, "getuid") and os.getuid() == 0
+_NOBODY = 65534  # the "nobody" user of most Linux systems (common practice, no source)
+
+
 @POSIX
 @pytest.mark.parametrize(
-    "weakness", ["folder-0o777", "folder-0o770", "file-0o666", "folder-is-a-symlink"]
+    "weakness",
+    [
+        "folder-0o777",
+        "folder-0o770",
+        "file-0o666",
+        "folder-is-a-symlink",
+        pytest.param(
+            "folder-of-another-user",
+            marks=pytest.mark.skipif(not _AS_ROOT, reason="needs root to give files away"),
+        ),
+        pytest.param(
+            "file-of-another-user",
+            marks=pytest.mark.skipif(not _AS_ROOT, reason="needs root to give files away"),
+        ),
+    ],
 )
 def test_a_term_cache_others_could_write_is_never_read(
     write: Write, tmp_path: Path, cache_home: Path, weakness: str
@@ -418,6 +436,10 @@ def test_a_term_cache_others_could_write_is_never_read(
         folder.chmod(0o770)
     elif weakness == "file-0o666":
         cache_file.chmod(0o666)
+    elif weakness == "folder-of-another-user":
+        os.chown(folder, _NOBODY, _NOBODY)  # mode stays 0o700: only its owner can write
+    elif weakness == "file-of-another-user":
+        os.chown(cache_file, _NOBODY, _NOBODY)
     else:
         real = tmp_path / "real-cache"
         folder.rename(real)
