@@ -67,6 +67,10 @@ JSONL_MIX: list[Line] = [
         b'{"source": "a", "proposal": "b", "n": ' + b"[" * 200_000 + b"]" * 200_000 + b"}",
         "JSON nested too deeply",  # 200,000 levels: past the parser's own recursion limit
     ),
+    bad(
+        b'{"source": "' + b"a " * 300_000 + b'", "proposal": "a"}',
+        "the source has more than 10000 tokens",  # 600 kB: under the byte limit
+    ),
     bad(b"[1, 2, 3]", "not a JSON object (got an array)"),
     bad(b'"source"', "not a JSON object (got a string)"),
     bad(b"42", "not a JSON object (got a number)"),
@@ -380,3 +384,25 @@ def test_a_header_that_cannot_be_read_is_still_the_header(tmp_path: Path, fmt: s
     (only,) = [json.loads(text)["error"] for text in out.splitlines()]
     assert only["line"] == 1 and only["reason"].startswith("the header cannot be read")
     assert _tally(err) == (1, 1, 0, 1)
+
+
+def test_the_limits_are_settings(tmp_path: Path) -> None:
+    """--max-record-bytes and --max-tokens: a record over either is an error record."""
+    lines = [
+        good("short", "teh pump", "the pump"),
+        bad(json.dumps({"source": "x" * 200, "proposal": "y"}).encode(), "longer than the limit"),
+        bad(
+            json.dumps({"source": "one", "proposal": "one two three four"}).encode(),
+            "the proposal has more than 3 tokens",
+        ),
+        good("three", "teh bilge pump", "the bilge pump"),
+    ]
+    path = tmp_path / "limits.jsonl"
+    path.write_bytes(_jsonl_bytes(lines))
+    limits = ["--max-record-bytes", "100", "--max-tokens", "3"]
+    for command, done in ((check_command, "verdict"), (filter_command, "guarded")):
+        args = [str(path), "--rules", "base", *limits]
+        code, out, err = _run(command, [*args, "--format", "jsonl"] if done == "verdict" else args)
+        _assert_jsonl_answers(out, lines, str(path), done)
+        _assert_reconciles(err, lines)
+        assert code == 1
