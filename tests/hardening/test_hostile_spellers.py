@@ -305,3 +305,49 @@ def test_a_second_one_added_where_the_source_has_one_still_counts(ruleset: str, 
     assert {f.rule for f in by_old["Friday"].findings} & {"hidden-character", "script-change"}
     assert "Friday" in report.guarded_strict
     assert "warehouse" in report.guarded
+
+
+# ---------------------------------------------------------------- same script, still disguised
+
+# Not a change of script, yet not the word either: stacked combining marks, a dotless ı
+# (UTS #39 confusables.txt maps U+0131 to 'i'; from memory), a fullwidth letter and
+# mathematical or fullwidth digits (NFKC folds them to ASCII, UAX #15; checked below).
+DISGUISED = {
+    "stacked-marks": ("Please pay the invoice.", "Please pa\u0301\u0301\u0301y the invoice."),
+    "dotless-i": ("Please send the invocie.", "Please send the invo\u0131ce."),
+    "fullwidth-letter": ("Please send the invocie.", "Please send the inv\uff4fice."),
+    "math-digit": ("Send 10 units.", "Send \U0001d7cf0 units."),
+    "fullwidth-digit": ("Send 10 units.", "Send \uff110 units."),
+}
+
+
+def test_the_disguises_fold_to_plain_text() -> None:
+    for ch, plain in (("\uff4f", "o"), ("\U0001d7cf", "1"), ("\uff11", "1")):
+        assert unicodedata.normalize("NFKC", ch) == plain, _id(ch)
+
+
+@pytest.mark.parametrize("ruleset", RULESETS)
+@pytest.mark.parametrize("case", list(DISGUISED))
+def test_a_disguised_letter_or_digit_of_the_same_script_is_held(ruleset: str, case: str) -> None:
+    source, proposal = DISGUISED[case]
+    report = _check(ruleset, source, proposal)
+    assert _held(report), report.verdict
+
+
+# ---------------------------------------------------------------- a wrapped speller
+
+
+@pytest.mark.parametrize("ruleset", RULESETS)
+def test_a_wrapped_hostile_speller_hands_back_clean_text(ruleset: str) -> None:
+    """``Guard.wrap``: a speller that smuggles a bidi override gets its text back with the
+    override undone; an n-best speller whose top candidate is hostile loses to the clean
+    one below it."""
+    source = "Please send the invocie to the warehouse by Friday."
+    fixed = "Please send the invoice to the warehouse by Friday."
+    hostile = fixed.replace("warehouse", "\u202ewarehouse")
+    one = _guard(ruleset).wrap(lambda text: hostile, lang="en", undo_flagged=True)
+    assert "\u202e" not in one(source)
+    lookalike = fixed.replace("invoice", "inv\u043eice")
+    nbest = _guard(ruleset).wrap(lambda text: [(lookalike, 0.9), (fixed, 0.6)], lang="en")
+    result = nbest.run(source)
+    assert result.text == fixed and result.report.proposal == fixed
