@@ -31,6 +31,7 @@ class TokenKind(enum.StrEnum):
     IDENTIFIER = "identifier"  # snake_case, camelCase, dotted.name, name()
     FLAG = "flag"  # -v, --color=auto
     CODE = "code"  # letters mixed with digits: XR-220, A4, H2O
+    PLACEHOLDER = "placeholder"  # %s, %1$d, %(name)s, {0}, {name}, $HOME, ${name}
     PUNCT = "punct"
     SYMBOL = "symbol"
     SPACE = "space"
@@ -47,6 +48,7 @@ LITERAL_KINDS: frozenset[TokenKind] = frozenset(
         TokenKind.IDENTIFIER,
         TokenKind.FLAG,
         TokenKind.CODE,
+        TokenKind.PLACEHOLDER,
     }
 )
 

@@ -2,7 +2,8 @@
 
 Code-switching ("the Zeitgeist of...", "a déjà vu") is deliberate; a speller tuned on one
 language "fixes" the other. The rule objects when the word's Zipf in one of the ruleset's
-``other-languages`` is at least ``min-zipf`` and higher than in the pair's language.
+``other-languages`` (and, by default, its other ``languages``: technical German is full of
+English) is at least ``min-zipf`` and higher than in the pair's language.
 
 Accepts: "recieve" -> "receive" (not a word of another listed language).
 Flags: with other-languages = ["de"], "the Zeitgeist" -> "the Seitgeist".
@@ -22,7 +23,11 @@ NAME = "foreign-word"
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
     assert rw is not None
-    others = [lang for lang in ctx.ruleset.other_languages if lang != ctx.lang]
+    listed = ctx.ruleset.other_languages
+    if settings.option("include-ruleset-languages", ctx.lang):
+        listed = (*listed, *ctx.ruleset.languages)
+    primary = ctx.lang.split("-", 1)[0].lower()
+    others = [lang for lang in dict.fromkeys(listed) if lang.split("-", 1)[0].lower() != primary]
     if not others:
         return
     min_zipf = settings.option("min-zipf", ctx.lang)
@@ -59,6 +64,12 @@ RULE = Rule(
     tier=Tier.EVIDENCE,
     default_action=Action.FLAG,
     options={
+        "include-ruleset-languages": OptionSpec(
+            default=True,
+            type=bool,
+            doc="also count the ruleset's own languages other than the pair's",
+            per_lang=True,
+        ),
         "min-zipf": OptionSpec(
             default=3.5,
             type=float,

@@ -1,5 +1,5 @@
 """letter-shape: ALLCAPS and internal-capital tokens (acronyms, brands) are vetoed; a
-capitalised word inside a sentence (a likely name) is flagged.
+capitalised word inside a sentence (a likely name) is flagged (``title-action``).
 
 Both yield to direction evidence: when no lexicon and no term list knows the source token
 and the speller moves it onto a protected term, or onto a word the lexicon knows that has
@@ -37,7 +37,10 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
         if shape in (Shape.ALLCAPS, Shape.INTERNAL_CAP) and sum(c.isalpha() for c in tok.text) >= 2:
             action = None
         elif shape is Shape.TITLE and not _sentence_start(ctx, tok):
-            action = Action.FLAG
+            title = settings.option("title-action", ctx.lang)
+            if title not in ("flag", "veto"):
+                continue  # "off"
+            action = Action(str(title))
         else:
             continue
         if _is_typo_fix(ctx, tok.text, shape, rw, settings):
@@ -73,10 +76,11 @@ def _is_typo_fix(
     if domain_known(ctx, new):
         return True
     max_fix = settings.option("max-fix-distance", ctx.lang)
-    assert isinstance(max_fix, int)
+    min_target = settings.option("min-target-zipf", ctx.lang)
+    assert isinstance(max_fix, int) and isinstance(min_target, float)
     return (
         shape_of(new) is shape
-        and zipf(ctx, new) > 0.0
+        and zipf(ctx, new) >= min_target
         and OSA.distance(old.casefold(), new.casefold()) <= max_fix
     )
 
@@ -88,6 +92,19 @@ RULE = Rule(
     default_action=Action.VETO,
     options={
         "unknown-below": UNKNOWN_BELOW,
+        "title-action": OptionSpec(
+            default="flag",
+            type=str,
+            doc="what a change to a capitalised word inside a sentence gets: flag, veto or "
+            "off (veto suits languages that capitalise nouns)",
+            per_lang=True,
+        ),
+        "min-target-zipf": OptionSpec(
+            default=3.0,
+            type=float,
+            doc="a typo fix must land on a word at least this common",
+            per_lang=True,
+        ),
         "max-fix-distance": OptionSpec(
             default=2,
             type=int,

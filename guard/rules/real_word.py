@@ -8,6 +8,9 @@ hold frequent misspellings too ("teh" has a real Zipf value), and a fix toward a
 common word is the speller doing its job. Case-, spacing- and punctuation-only changes are
 not this rule's business.
 
+A split of a word the lexicon knows ("Fehlgeformter" -> "Fehl geformter") is objected to
+as well: a typo does not glue words into one the language already has.
+
 Accepts: "teh" -> "the" (Zipf gain above min-gain). Vetoes: "kernel" -> "kennel".
 """
 
@@ -17,16 +20,45 @@ from collections.abc import Iterator
 
 from guard.records import Action, Finding, Refinement, Rewrite, RewriteKind, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import content_tokens, phrase_zipf
+from guard.rules.words import content_tokens, phrase_zipf, zipf
 from guard.ruleset.model import RuleSettings
 
 NAME = "real-word"
 SKIP = frozenset({Refinement.CASE, Refinement.SPACING, Refinement.PUNCTUATION})
 
 
+def _split_of_known_word(rw: Rewrite, ctx: PairContext, settings: RuleSettings) -> float | None:
+    """The Zipf of the word a split cuts apart, when that word is known at all."""
+    if rw.kind is not RewriteKind.SPLIT:
+        return None
+    old = content_tokens(rw.old_tokens)
+    if len(old) != 1:
+        return None
+    z = zipf(ctx, old[0].text)
+    floor = settings.option("split-min-zipf", ctx.lang)
+    assert isinstance(floor, float)
+    return z if z >= floor else None
+
+
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
     assert rw is not None
-    if ctx.lexicon is None or rw.refinement in SKIP or rw.kind is RewriteKind.INSERT:
+    if ctx.lexicon is None or rw.kind is RewriteKind.INSERT:
+        return
+    split_zipf = _split_of_known_word(rw, ctx, settings)
+    if split_zipf is not None:
+        yield finding(
+            NAME,
+            Tier.EVIDENCE,
+            settings,
+            "'{old}' is a {lang} word (Zipf {zipf_old}); splitting it is not a fix",
+            rewrite=rw.index,
+            old=rw.old,
+            new=rw.new,
+            lang=ctx.lang,
+            zipf_old=split_zipf,
+        )
+        return
+    if rw.refinement in SKIP:
         return
     if not content_tokens(rw.old_tokens):
         return
@@ -71,6 +103,12 @@ RULE = Rule(
             default=1.5,
             type=float,
             doc="Zipf by which the new word must be more common for the rewrite to pass",
+            per_lang=True,
+        ),
+        "split-min-zipf": OptionSpec(
+            default=1.0,
+            type=float,
+            doc="a word at least this common is not cut in two (compounds, glued terms)",
             per_lang=True,
         ),
     },

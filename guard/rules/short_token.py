@@ -2,7 +2,7 @@
 
 Two letters leave a speller almost no evidence: "mg", "IV", "ok", "km" all look like typos.
 
-Accepts: "teh" -> "the" (three letters, above the default). Flags: "ml" -> "my".
+Accepts: "teh" -> "the" (three letters, above the default). Vetoes: "ml" -> "my".
 """
 
 from __future__ import annotations

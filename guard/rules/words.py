@@ -25,6 +25,7 @@ UNKNOWN_BELOW = OptionSpec(
 
 _NOT_WORDS = frozenset({TokenKind.SPACE, TokenKind.PUNCT, TokenKind.SYMBOL})
 _APOSTROPHES = regex.compile(r"['’]")
+_JOINERS = regex.compile(r"['’\-‐‑]")
 _LETTER = regex.compile(r"\p{L}")
 
 
@@ -59,16 +60,16 @@ def one_word_change(rw: Rewrite) -> tuple[str, str] | None:
 def zipf(ctx: PairContext, word: str) -> float:
     """Zipf frequency of ``word`` in the pair's language; 0.0 when unknown or no lexicon.
 
-    Elided and contracted forms (l'homme, dell'acqua, don't) are looked up whole first,
-    then as the rarest of their parts, as wordfreq itself splits them.
+    Elided, contracted and hyphenated forms (l'homme, don't, Unix-Epoch) are looked up
+    whole first, then as the rarest of their parts, as wordfreq itself splits them.
     """
     lex = ctx.lexicon
     if lex is None:
         return 0.0
     z = lex.zipf(word)
-    if z > 0.0 or not _APOSTROPHES.search(word):
+    if z > 0.0 or not _JOINERS.search(word):
         return z
-    parts = [p for p in _APOSTROPHES.split(word) if _LETTER.search(p)]
+    parts = [p for p in _JOINERS.split(word) if _LETTER.search(p)]
     if not parts:
         return 0.0
     return min(lex.zipf(p) for p in parts)

@@ -82,8 +82,19 @@ _LITERAL_NEXT = r"[@/\\+]|:[/\\]"
 # ones take whatever is left. Flags (pairs of regional indicators) are matched before
 # the last resort \X, which in the regex module rescans a long run of them for every
 # cluster.
+# Format placeholders of program messages: printf (%s, %-10.2f, %1$s, %lu), Python
+# (%(name)s, {0}, {name!r:>8}), shell and template variables ($HOME, ${name}).
+_PLACEHOLDER = (
+    r"%(?:\d+\$)?[-+ #0']*(?:\d+|\*)?(?:\.(?:\d+|\*))?"
+    r"(?:hh|ll|[hlLqjzt]|I64|I32)?[diouxXeEfFgGaAcspn]"
+    r"|%\([A-Za-z_]\w*\)[-+ #0]*\d*(?:\.\d+)?[diouxXeEfFgGcrsa]"
+    r"|\{(?:[A-Za-z_][\w.]*|\d+)?(?:![rsa])?(?::[^{}\s]{0,12})?\}"
+    r"|\$\{[A-Za-z_]\w*\}|\$[A-Za-z_]\w*"
+)
+
 _PATTERN = rf"""
   (?P<space>(?>\r\n|\s)+{_END})
+| (?P<placeholder>(?<!%)(?:{_PLACEHOLDER})(?![\w]){_END})
 | (?P<prose>{_PLAIN}(?:\x20{_PLAIN})*(?![\w\-‐.'’·(%‰]|{_LITERAL_NEXT}){_END})
 | (?P<mark>[\p{{P}}--[{_STARTERS}]]{_END})
 | (?P<sign>[\p{{S}}--[{_STARTERS}\p{{Regional_Indicator}}]]{_END})
@@ -121,6 +132,7 @@ _PUNCT = regex.compile(r"\p{P}")
 _NUMERIC = regex.compile(r"\p{N}")
 
 _GROUP_KIND = {
+    "placeholder": TokenKind.PLACEHOLDER,
     "url": TokenKind.URL,
     "email": TokenKind.EMAIL,
     "path": TokenKind.PATH,

@@ -231,3 +231,25 @@ def test_no_token_ends_inside_a_grapheme_cluster(text: str) -> None:
     # clusters (the tokenizer uses it only as its last resort, per character).
     boundaries = {m.end() for m in regex.finditer(r"\X", text)} | {0}
     assert {t.end for t in tokenize(text)} <= boundaries
+
+
+# Format placeholders as the C standard (printf conversion specifications, C11 7.21.6.1),
+# Python's str.format and %-formatting, and POSIX shell parameter expansion write them.
+PLACEHOLDERS = [
+    "%s",
+    "%d",
+    "%-10.2f",
+    "%1$s",
+    "%lu",
+    "%(count)d",
+    "{0}",
+    "{name!r}",
+    "$HOME",
+    "${dir}",
+]
+
+
+@pytest.mark.parametrize("text", PLACEHOLDERS, ids=PLACEHOLDERS)
+def test_format_placeholders_are_one_literal_token(text: str) -> None:
+    tokens = [t for t in tokenize(f"got {text} here") if t.kind is not TokenKind.SPACE]
+    assert [(t.text, t.kind) for t in tokens][1] == (text, TokenKind.PLACEHOLDER)
