@@ -5,8 +5,8 @@ correct but rare-to-the-speller word is exactly what a general speller overcorre
 rule objects when the source word's Zipf frequency (wordfreq) is at least ``min-zipf``,
 unless the new word is at least ``min-gain`` Zipf more common: web-derived frequency lists
 hold frequent misspellings too ("teh" has a real Zipf value), and a fix toward a far more
-common word is the speller doing its job. Case-, spacing- and punctuation-only changes are
-not this rule's business.
+common word is the speller doing its job. Case- and spacing-only changes are not this
+rule's business; punctuation-only ones are ("doesn’t" -> "doesn't" gains nothing).
 
 A split of a word the lexicon knows ("Fehlgeformter" -> "Fehl geformter") is objected to
 as well: a typo does not glue words into one the language already has.
@@ -24,15 +24,14 @@ from guard.rules.words import content_tokens, phrase_zipf, zipf
 from guard.ruleset.model import RuleSettings
 
 NAME = "real-word"
-SKIP = frozenset({Refinement.CASE, Refinement.SPACING, Refinement.PUNCTUATION})
+SKIP = frozenset({Refinement.CASE, Refinement.SPACING})
 
 
 def _split_of_known_word(rw: Rewrite, ctx: PairContext, settings: RuleSettings) -> float | None:
-    """The Zipf of the word a split cuts apart, when that word is known at all."""
-    if rw.kind is not RewriteKind.SPLIT:
-        return None
+    """The Zipf of the word a split cuts apart (letters may change a little, as when a
+    compound's linking s is dropped), when that word is at least ``split-min-zipf``."""
     old = content_tokens(rw.old_tokens)
-    if len(old) != 1:
+    if len(old) != 1 or len(content_tokens(rw.new_tokens)) < 2:
         return None
     z = zipf(ctx, old[0].text)
     floor = settings.option("split-min-zipf", ctx.lang)
