@@ -147,7 +147,7 @@ def test_alignment_round_trips(pair: tuple[str, str]) -> None:
         assert rewrites == ()
 
 
-@settings(max_examples=1000, deadline=None)
+@settings(max_examples=300, deadline=None)
 @given(pairs(), st.data())
 def test_any_subset_applies(pair: tuple[str, str], data: st.DataObject) -> None:
     source, proposal = pair
@@ -159,7 +159,7 @@ def test_any_subset_applies(pair: tuple[str, str], data: st.DataObject) -> None:
     assert apply(result, undo) == source
 
 
-@settings(max_examples=1000, deadline=None)
+@settings(max_examples=300, deadline=None)
 @given(pairs())
 def test_rewrite_tokens_are_the_texts_own_tokens(pair: tuple[str, str]) -> None:
     # align tokenizes only the changed region; its tokens must be those of the whole text
@@ -173,7 +173,7 @@ def test_rewrite_tokens_are_the_texts_own_tokens(pair: tuple[str, str]) -> None:
 WORDS = st.lists(st.text(alphabet="abcdefgh", min_size=1, max_size=6), min_size=2, max_size=8)
 
 
-@settings(max_examples=1000, deadline=None)
+@settings(max_examples=300, deadline=None)
 @given(WORDS, st.data())
 def test_one_space_less_is_one_join_and_back_one_split(
     words: list[str], data: st.DataObject
