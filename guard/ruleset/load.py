@@ -22,6 +22,7 @@ import hashlib
 import importlib
 import os
 import re
+import stat
 import sys
 import tomllib
 import unicodedata
@@ -321,7 +322,11 @@ class _FileReader:
 
     def contained(self, key: str, rel: str) -> Path | None:
         """``rel`` resolved against the ruleset's folder, refused if it leaves the folder."""
-        target = (self.folder / rel).resolve()
+        try:
+            target = (self.folder / rel).resolve()
+        except (ValueError, RuntimeError, OSError) as e:  # a NUL in it; a symlink loop
+            self.err(key, f"path {rel!r} cannot be resolved: {e}")
+            return None
         if not self.allow_outside and not target.is_relative_to(self.folder.resolve()):
             self.err(
                 key,
@@ -875,6 +880,15 @@ def _unknown_option(rule: Rule, opt: str) -> str:
 def _read_bounded(path: Path, limit: int) -> bytes | str:
     """The bytes of ``path``, or what is wrong ("not found", "is larger than ...")."""
     try:
+        mode = path.stat().st_mode
+    except FileNotFoundError:
+        return "not found"
+    except OSError as e:
+        return f"cannot be read: {e.strerror or e}"
+    if not (stat.S_ISREG(mode) or stat.S_ISDIR(mode)):
+        # a pipe would block the open until someone writes; a device may never end
+        return "is not a regular file"
+    try:
         with path.open("rb") as fh:
             size = os.fstat(fh.fileno()).st_size
             if size > limit:
@@ -1087,7 +1101,13 @@ class _Resolver:
                 )
                 return None
             return target.resolve()
-        target = resolve_ref(ref, layer.path.parent)
+        try:
+            target = resolve_ref(ref, layer.path.parent)
+        except (ValueError, RuntimeError, OSError) as e:  # a NUL in it; a symlink loop
+            self.p.error(
+                file, f"extends path {ref!r} cannot be resolved: {e}", _line(layer, key), key
+            )
+            return None
         folder = layer.path.parent.resolve()
         if not self.allow_outside and not target.is_relative_to(folder):
             self.p.error(
@@ -1124,7 +1144,11 @@ class _Resolver:
                 self.p.error(str(ref), f"no bundled ruleset named '{ref}' (bundled: {known})")
                 return None
             return target.resolve()
-        target = resolve_ref(ref, None)
+        try:
+            target = resolve_ref(ref, None)
+        except (ValueError, RuntimeError, OSError) as e:  # a NUL in it; a symlink loop
+            self.p.error(str(ref), f"ruleset path cannot be resolved: {e}")
+            return None
         if not target.is_file():
             self.p.error(str(target), "ruleset file not found")
             return None

@@ -101,7 +101,7 @@ def shorten_path(file: str, base: Path | None) -> str:
         return file
     try:
         return Path(file).resolve().relative_to(base.resolve()).as_posix()
-    except (ValueError, OSError):
+    except (ValueError, RuntimeError, OSError):  # RuntimeError: a symlink loop (3.11)
         return file
 
 
