@@ -134,6 +134,45 @@ def line_chart(
     return _svg(width, height, body, label)
 
 
+def tradeoff_chart(points: Sequence[tuple[str, float, float]], *, label: str) -> str:
+    """Each swept value as a point: good corrections kept (x) against overcorrections
+    prevented (y), both shares in 0..1; up and to the right is better."""
+    width, height = 760, 360
+    left, right, top, bottom = 60, 30, 20, 50
+    xs = [x for _, x, _ in points] or [1.0]
+    ys = [y for _, _, y in points] or [1.0]
+    x_lo = max(0.0, min(xs) - 0.02)
+    y_lo = max(0.0, min(ys) - 0.05)
+
+    def px(x: float) -> float:
+        return left + (x - x_lo) / ((1.0 - x_lo) or 1.0) * (width - left - right)
+
+    def py(y: float) -> float:
+        return top + (1.0 - (y - y_lo) / ((1.0 - y_lo) or 1.0)) * (height - top - bottom)
+
+    body: list[str] = [
+        f'<line x1="{left}" y1="{py(y_lo):.1f}" x2="{width - right}" y2="{py(y_lo):.1f}" '
+        'stroke="#999"/>',
+        f'<line x1="{left}" y1="{top}" x2="{left}" y2="{py(y_lo):.1f}" stroke="#999"/>',
+    ]
+    for k in range(6):
+        xv = x_lo + (1.0 - x_lo) * k / 5
+        yv = y_lo + (1.0 - y_lo) * k / 5
+        body.append(_text(px(xv), height - bottom + 16, pct(xv), anchor="middle", size=10))
+        body.append(_text(left - 6, py(yv) + 4, pct(yv), anchor="end", size=10))
+    body.append(
+        _text((left + width - right) / 2, height - 12, "good corrections kept", anchor="middle")
+    )
+    body.append(_text(left + 6, top + 10, "overcorrections prevented", size=11))
+    path = " ".join(f"{px(x):.1f},{py(y):.1f}" for _, x, y in points)
+    if points:
+        body.append(f'<polyline points="{path}" fill="none" stroke="#bbb" stroke-width="1"/>')
+    for name, x, y in points:
+        body.append(f'<circle cx="{px(x):.1f}" cy="{py(y):.1f}" r="4" fill="{GUARDED}"/>')
+        body.append(_text(px(x) + 6, py(y) - 6, name, size=10))
+    return _svg(width, height, body, label)
+
+
 def _table(header: Sequence[str], rows: Sequence[Sequence[str]]) -> str:
     head = "".join(f"<th>{escape(h)}</th>" for h in header)
     body = "".join("<tr>" + "".join(f"<td>{escape(c)}</td>" for c in row) + "</tr>" for row in rows)
@@ -235,9 +274,18 @@ def _sweep_html(r: ScoreReport) -> str:
         x_label=setting,
         label=f"sweep of {setting}: prevented and kept",
     )
+    trade = tradeoff_chart(
+        [
+            (f"{p.value:g}", p.summary.kept_share, p.summary.prevented_share)
+            for p in r.sweep
+            if p.summary.kept_share is not None and p.summary.prevented_share is not None
+        ],
+        label=f"sweep of {setting}: prevented against kept",
+    )
     return (
         f"<h2>Sweep of <code>{escape(setting)}</code></h2>"
         + chart
+        + trade
         + _table(SWEEP_HEADER, sweep_rows(r.sweep))
     )
 
