@@ -86,6 +86,8 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
     assert isinstance(cost, float) and isinstance(per, int) and isinstance(cap, int)
     letters = max(len(t.text) for t in old_words)
     budget = min(cap, max(1, letters // max(per, 1)))
+    if OSA.distance(old, new, score_cutoff=budget) <= budget:
+        return  # within budget before any keyboard discount
     dist = weighted_distance(old, new, cost)
     if dist > budget:
         yield finding(
