@@ -46,6 +46,7 @@ import gzip
 import importlib
 import importlib.resources
 import json
+import unicodedata
 from collections.abc import Callable, Iterable, Iterator, Mapping
 from functools import cache
 from typing import Any
@@ -192,12 +193,27 @@ class _Cached:
         return _each_word(text, self._fix)
 
 
+def _plain(word: str) -> str:
+    """``word`` without combining marks (NFKD), as pyspellchecker compares accents."""
+    return "".join(c for c in unicodedata.normalize("NFKD", word) if not unicodedata.combining(c))
+
+
 def _pyspellchecker_speller(lang: str, distance: int) -> Speller:
     checker = _pyspellchecker(lang, distance)
 
     def lookup(word: str) -> str | None:
-        got = checker.correction(word)
-        return got if isinstance(got, str) else None
+        """pyspellchecker's own ``correction``, made reproducible.
+
+        ``correction`` takes the most frequent candidate (preferring those that differ
+        only in accents) with ``max`` over a set, so between candidates of equal frequency
+        the winner depends on string hashing, which changes from process to process. The
+        choice here is the same except that such ties go to the alphabetically first.
+        """
+        candidates = checker.candidates(word)
+        if not candidates:
+            return None
+        pool = [c for c in candidates if _plain(c) == _plain(word)] or list(candidates)
+        return max(sorted(pool), key=lambda c: checker[c])  # type: ignore[no-any-return]
 
     return _Cached(f"pyspellchecker-d{distance}", lookup)
 
