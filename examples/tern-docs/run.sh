@@ -31,7 +31,7 @@ done
 #    demo's own ruleset (base + Tern Labs terms), with a sweep of the real-word threshold.
 "$guard" score "$out/proposed.jsonl" --rules base --output "$out/score-base.txt"
 "$guard" score "$out/proposed.jsonl" --rules "$here/ruleset/ruleset.toml" \
-    --sweep rules.real-word.min-zipf=2:5:0.5 \
+    --sweep rules.real-word.min-zipf=0.5:4:0.5 \
     --output "$out/score-tern.txt" --html "$out/score-tern.html"
 
 echo "== base ruleset"
