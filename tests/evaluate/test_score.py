@@ -265,3 +265,44 @@ def test_cli_bad_sweep_is_a_usage_error(tmp_path: Path) -> None:
     result = CliRunner().invoke(command, [str(path), "--sweep", "x=1:2"])
     assert result.exit_code == 2
     assert "expected SETTING=START:STOP:STEP" in result.stderr
+
+
+@pytest.mark.parametrize(
+    ("options", "code"),
+    [
+        pytest.param([], 0, id="no-target"),
+        pytest.param(["--min-prevented", "100"], 0, id="prevented-met"),
+        pytest.param(["--min-kept", "97"], 0, id="no-good-corrections-to-keep"),
+    ],
+)  # fmt: skip
+def test_cli_targets(tmp_path: Path, options: list[str], code: int) -> None:
+    # One clean record the speller damages: "JSON" -> "Jason" (the API's own example of a
+    # vetoed rewrite, guard/api.py).
+    path = tmp_path / "one.jsonl"
+    record = {"source": "Send the JSON file", "gold": "Send the JSON file",
+              "proposal": "Send the Jason file", "lang": "en"}  # fmt: skip
+    path.write_text(json.dumps(record) + "\n", encoding="utf-8")
+    result = CliRunner().invoke(
+        command, [str(path), "--rules", "base", *options], standalone_mode=False
+    )
+    assert result.exception is None
+    assert result.return_value == code
+
+
+def test_cli_target_missed_exits_one(tmp_path: Path) -> None:
+    from guard.rules import REGISTRY
+
+    path = tmp_path / "one.jsonl"
+    record = {"source": "Send the JSON file", "gold": "Send the JSON file",
+              "proposal": "Send the Jason file", "lang": "en"}  # fmt: skip
+    path.write_text(json.dumps(record) + "\n", encoding="utf-8")
+    # Every rule off: the guard accepts the rewrite, so 0% of overcorrections is prevented.
+    off = [arg for name in REGISTRY for arg in ("--set", f"rules.{name}.action=off")]
+    result = CliRunner().invoke(
+        command,
+        [str(path), "--rules", "base", *off, "--min-prevented", "50"],
+        standalone_mode=False,
+    )
+    assert result.exception is None
+    assert "overcorrections prevented  0 of 1  0.0%" in result.stdout
+    assert result.return_value == 1
