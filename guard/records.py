@@ -8,6 +8,7 @@ Python API only ever see these records; none of them may reach back into rules.
 from __future__ import annotations
 
 import enum
+import os
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
 from typing import Union
@@ -156,7 +157,17 @@ class Origin:
     key: str | None = None
 
     def __str__(self) -> str:
-        where = self.file if self.line is None else f"{self.file}:{self.line}"
+        """``file:line [key]``, the file shown relative to the current folder when inside it
+        (machine-readable outputs keep ``file`` as it is)."""
+        shown = self.file
+        if os.path.isabs(shown):
+            try:
+                rel = os.path.relpath(shown)
+            except ValueError:  # another drive
+                rel = shown
+            if not rel.startswith(".."):
+                shown = rel
+        where = shown if self.line is None else f"{shown}:{self.line}"
         return where if self.key is None else f"{where} [{self.key}]"
 
 

@@ -74,7 +74,8 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
         NAME,
         Tier.EVIDENCE,
         settings,
-        "'{old}' is already a common {lang} word (Zipf {zipf_old}); '{new}' is Zipf {zipf_new}",
+        "'{old}' is already listed as a word in {lang} (Zipf {zipf_old}); "
+        "'{new}' (Zipf {zipf_new}) is not enough more common to call it a fix",
         rewrite=rw.index,
         old=rw.old,
         new=rw.new,
