@@ -38,6 +38,15 @@ frequency alone.
 
 Both libraries are the optional extra ``guard[spellers]``; they are imported only when an
 adapter is first built, with a clear error when they are missing.
+
+An adapter is also what the Python API's speller wrapper takes:
+
+>>> from guard.api import Guard
+>>> fix = get_speller("pyspellchecker", "en")
+>>> fix("Check the speling of the USB port")
+'Check the spelling of the US port'
+>>> Guard("base").wrap(fix, lang="en")("Check the speling of the USB port")
+'Check the spelling of the USB port'
 """
 
 from __future__ import annotations
