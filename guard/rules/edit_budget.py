@@ -24,6 +24,7 @@ from guard.rules.words import content_tokens
 from guard.ruleset.model import RuleSettings
 
 NAME = "edit-budget"
+_DISCOUNT_MAX_LEN = 64
 _JOINERS = regex.compile(r"[\s\-‐‑]+")
 _ROWS = (
     ("1234567890", "qwertyuiop", "asdfghjkl", "zxcvbnm"),  # QWERTY
@@ -60,8 +61,8 @@ def weighted_distance(old: str, new: str, adjacent_cost: float) -> float:
     1.0
     """
     dist = float(OSA.distance(old, new))
-    if dist == 0 or adjacent_cost >= 1.0:
-        return dist
+    if dist == 0 or adjacent_cost >= 1.0 or max(len(old), len(new)) > _DISCOUNT_MAX_LEN:
+        return dist  # edit operations of very long tokens cost quadratic time; no discount
     near = sum(
         1
         for op in Levenshtein.editops(old, new)

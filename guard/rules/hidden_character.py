@@ -33,8 +33,9 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
         NAME,
         Tier.HARD,
         settings,
-        "the rewrite inserts invisible character(s) {code_points}",
+        "the rewrite inserts invisible character(s) {shown}",
         rewrite=rw.index,
+        shown=", ".join(f"{p} {n}" for p, n in zip(points, names, strict=True)),
         code_points=points,
         names=names,
     )

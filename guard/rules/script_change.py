@@ -55,9 +55,14 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             new_scripts=tuple(sorted(new_scripts)),
         )
         return
-    old_mixed = {t.text for t in content_tokens(rw.old_tokens) if is_mixed_script(t.text)}
+    # A token that was mixed-script already (the speller fixing a typo elsewhere in it)
+    # is only the rewrite's doing when the rewrite brings in a script it did not have.
+    old_mixed = [t.text for t in content_tokens(rw.old_tokens) if is_mixed_script(t.text)]
+    old_mixed_scripts = scripts_of("".join(old_mixed))
     for tok in content_tokens(rw.new_tokens):
-        if tok.text not in old_mixed and is_mixed_script(tok.text):
+        if tok.text in old_mixed or (old_mixed and scripts_of(tok.text) <= old_mixed_scripts):
+            continue
+        if is_mixed_script(tok.text):
             yield finding(
                 NAME,
                 Tier.HARD,

@@ -39,6 +39,8 @@ CASES = [
     ("script-change", "the colour", "the colr", "en", None, None),
     ("script-change", "pay the bill", "pаy the bill", "en", None, Action.VETO),
     ("script-change", "Москва", "Масква", "ru", None, None),
+    # a typo fixed inside a word that already mixed scripts adds no look-alike
+    ("script-change", "the inv\u043eicr is due", "the inv\u043eice is due", "en", None, None),
     ("blocked-pair", "give hydroxyzine", "give hydroxine", "en", None, None),
     ("blocked-pair", "give hydroxyzine", "give hydralazine", "en", None, Action.VETO),
     ("protected-term", "Quillmate sycn", "Quillmate sync", "en", None, None),
