@@ -38,6 +38,7 @@ class OptionSpec:
     type: type | tuple[type, ...]
     doc: str
     per_lang: bool = False  # may be overridden under [rules.<name>.lang.<tag>]
+    choices: tuple[object, ...] | None = None  # the only values allowed, when listed
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)

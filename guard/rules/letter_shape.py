@@ -98,6 +98,7 @@ RULE = Rule(
             doc="what a change to a capitalised word inside a sentence gets: flag, veto or "
             "off (veto suits languages that capitalise nouns)",
             per_lang=True,
+            choices=("flag", "veto", "off"),
         ),
         "min-target-zipf": OptionSpec(
             default=3.0,

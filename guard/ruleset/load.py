@@ -832,6 +832,9 @@ def coerce_option(value: object, spec: OptionSpec) -> tuple[bool, object, str]:
     if tuple in kinds and isinstance(value, list) and list not in kinds:
         return True, tuple(value), ""
     if isinstance(value, kinds):
+        if spec.choices is not None and value not in spec.choices:
+            allowed = ", ".join(repr(c) for c in spec.choices)
+            return False, value, f"expected one of {allowed}, got {value!r}"
         return True, value, ""
     return False, value, f"expected {_type_names(kinds)}, got {_describe(value)}"
 
