@@ -157,8 +157,12 @@ class Origin:
     key: str | None = None
 
     def __str__(self) -> str:
-        """``file:line [key]``, the file shown relative to the current folder when inside it
-        (machine-readable outputs keep ``file`` as it is)."""
+        where = self.file if self.line is None else f"{self.file}:{self.line}"
+        return where if self.key is None else f"{where} [{self.key}]"
+
+    def shown(self) -> str:
+        """``file:line [key]`` for people: the file relative to the current folder when it
+        lies inside it (machine-readable outputs keep ``file`` as it is)."""
         shown = self.file
         if os.path.isabs(shown):
             try:

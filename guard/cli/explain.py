@@ -112,7 +112,7 @@ def _finding_lines(f: Finding) -> Iterator[str]:
     if f.evidence:
         yield f"    Evidence: {_evidence(f.evidence)}."
     if f.origin is not None:
-        yield f"    This comes from {f.origin}."
+        yield f"    This comes from {f.origin.shown()}."
 
 
 def _evidence(evidence: Mapping[str, EvidenceValue]) -> str:

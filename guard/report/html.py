@@ -182,7 +182,7 @@ class HtmlReporter(Reporter):
         self._rules_seen.update(rules)
         items = "".join(
             f"<li><b>{_esc(f.rule)}</b> ({f.action.value}): {_esc(f.message)}"
-            + (f' <span class="where">{_esc(str(f.origin))}</span>' if f.origin else "")
+            + (f' <span class="where">{_esc(f.origin.shown())}</span>' if f.origin else "")
             + "</li>"
             for f in findings
         )

@@ -49,13 +49,13 @@ class TextReporter(Reporter):
                 f"{visible(before)}{self._paint(span, rv.verdict, bold=True)}{visible(after)}\n"
             )
             for f in rv.findings:
-                where = f" ({f.origin})" if f.origin is not None else ""
+                where = f" ({f.origin.shown()})" if f.origin is not None else ""
                 w(f"       {f.rule} ({f.action.value}): {visible(f.message)}{where}\n")
             for f in rv.overridden:
                 allowed = f" by the allowed pair at {rv.allowed_by}" if rv.allowed_by else ""
                 w(f"       {f.rule}: set aside{allowed}: {visible(f.message)}\n")
         for f in report.pair_findings:
-            where = f" ({f.origin})" if f.origin is not None else ""
+            where = f" ({f.origin.shown()})" if f.origin is not None else ""
             w(f"  whole pair: {f.rule} ({f.action.value}): {visible(f.message)}{where}\n")
         if report.guarded != report.source:
             w(f"  guarded: {visible(report.guarded)}\n")
