@@ -19,10 +19,10 @@ terms ``guard harvest`` proposes from the lines of the same set that are not eva
 (lines after ``--cap``): other text of the same domain, as a team would harvest its own
 documents. The draft lists are used as harvested, unreviewed.
 
-The scored records are written to evaluation/work/<lang>.<speller>.jsonl, so that one
+The scored records are written to evaluation/scored/<lang>.<speller>.jsonl, so that one
 pair of language and speller can be examined or swept on its own:
 
-    guard score evaluation/work/de.pyspellchecker.jsonl --sweep rules.real-word.min-zipf=2:4:0.25
+    guard score evaluation/scored/de.pyspellchecker.jsonl --sweep rules.real-word.min-zipf=2:4:0.25
 
 Usage:
 
@@ -56,7 +56,7 @@ from guard.evaluate.typos import TypoOptions, typo_records  # noqa: E402
 LANGS = ("en", "de", "fr", "es", "nl")
 SPELLERS = ("pyspellchecker", "pyspellchecker-d1", "symspell-word", "symspell-compound")
 CACHE = HERE / "proposals"
-WORK = HERE / "work"
+WORK = HERE / "scored"
 
 
 def load_set(lang: str, cap: int) -> list[CleanText]:
