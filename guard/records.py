@@ -7,14 +7,49 @@ Python API only ever see these records; none of them may reach back into rules.
 
 from __future__ import annotations
 
+import dataclasses
 import enum
 import os
-from collections.abc import Iterable, Mapping
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
-from typing import Union
+from typing import Any, TypeVar, Union
 
 EvidenceValue = Union[str, int, float, bool, None, tuple["EvidenceValue", ...]]  # noqa: UP007 (a recursive alias needs Union)
 """A value a machine can read from a finding: plain scalars and tuples of them."""
+
+
+_C = TypeVar("_C", bound=type[Any])
+
+
+def quick_init(cls: _C) -> _C:
+    """Give a frozen, slotted, keyword-only dataclass a faster ``__init__`` of the same
+    signature.
+
+    The ``__init__`` that ``dataclass(frozen=True)`` writes calls ``object.__setattr__``
+    through a global name once per field; setting each slot through its descriptor does
+    the same in about a third of the time. A check builds a dozen records, and building
+    them was a tenth of its cost. Everything else (frozenness, equality, hashing, repr,
+    pickling) stays as ``dataclass`` made it.
+    """
+    params: list[str] = []
+    body: list[str] = []
+    scope: dict[str, object] = {}
+    for i, f in enumerate(dataclasses.fields(cls)):
+        if not f.init or f.default_factory is not dataclasses.MISSING:
+            raise TypeError(f"{cls.__name__}.{f.name}: quick_init takes plain fields only")
+        scope[f"set{i}"] = getattr(cls, f.name).__set__
+        if f.default is dataclasses.MISSING:
+            params.append(f.name)
+        else:
+            scope[f"default{i}"] = f.default
+            params.append(f"{f.name}=default{i}")
+        body.append(f"    set{i}(self, {f.name})")
+    source = f"def __init__(self, *, {', '.join(params)}):\n" + "\n".join(body) + "\n"
+    exec(source, scope)  # built from the field names of a dataclass, nothing else
+    init: Callable[..., None] = scope["__init__"]  # type: ignore[assignment]
+    init.__qualname__ = f"{cls.__qualname__}.__init__"
+    cls.__init__ = init
+    return cls
 
 
 class TokenKind(enum.StrEnum):
@@ -54,6 +89,7 @@ LITERAL_KINDS: frozenset[TokenKind] = frozenset(
 )
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Token:
     """A span of a text. ``start``/``end`` are character offsets into the text it came from."""
@@ -83,6 +119,7 @@ class Refinement(enum.StrEnum):
     PUNCTUATION = "punctuation"  # punctuation only
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Rewrite:
     """One aligned change between source and proposal.
@@ -175,6 +212,7 @@ class Origin:
         return where if self.key is None else f"{where} [{self.key}]"
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Finding:
     """What one rule saw about one rewrite (``rewrite`` = its index) or the pair (``None``).
@@ -200,6 +238,7 @@ class Finding:
             return self.template
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class RewriteVerdict:
     """A rewrite, the verdict on it, and every finding that bears on it.
@@ -216,6 +255,7 @@ class RewriteVerdict:
     allowed_by: Origin | None = None
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Report:
     """The whole judgement on one pair."""

@@ -12,7 +12,7 @@ from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
-from guard.records import Action, EvidenceValue, Finding, Origin, Rewrite, Tier
+from guard.records import Action, EvidenceValue, Finding, Origin, Rewrite, Tier, quick_init
 
 if TYPE_CHECKING:
     from guard.ruleset.lexicon import Lexicon
@@ -41,6 +41,7 @@ class OptionSpec:
     choices: tuple[object, ...] | None = None  # the only values allowed, when listed
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class PairContext:
     """What every rule may know about the pair under check. Built once per pair."""
