@@ -8,7 +8,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from guard.records import Token, TokenKind
-from guard.text.tokenize import spans, tokenize
+from guard.text.tokenize import _scan, spans, tokenize
 
 K = TokenKind
 
@@ -221,7 +221,24 @@ def test_tokens_tile_the_text(text: str) -> None:
     for t in tokens:
         assert t.start == at and t.end > t.start and text[t.start : t.end] == t.text
         at = t.end
-    assert [(t.start, t.end, t.kind) for t in tokens] == spans(text)
+    assert tuple((t.start, t.end, t.kind) for t in tokens) == spans(text)
+
+
+# Words of ASCII letters in every case pattern (camelCase, PascalCase, ALLCAPS, one letter)
+# and runs of spaces: the text the fast path for plain words takes.
+PLAIN = st.lists(
+    st.from_regex(
+        r"[a-z]{1,6}|[A-Z][a-z]{0,5}|[a-z]{2,4}[A-Z][a-z]{0,3}|[A-Z]{1,4}[a-z]{0,3}| {1,3}",
+        fullmatch=True,
+    ),
+    max_size=10,
+).map("".join)
+
+
+@settings(max_examples=2000, deadline=None)
+@given(PLAIN)
+def test_plain_words_fast_path_cuts_as_the_token_pattern(text: str) -> None:
+    assert spans(text) == _scan(text)
 
 
 @settings(max_examples=1000, deadline=None)
