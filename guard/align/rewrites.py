@@ -28,7 +28,7 @@ import unicodedata
 from collections.abc import Iterable, Sequence
 
 import regex
-from rapidfuzz.distance import OSA, Levenshtein
+from rapidfuzz.distance import OSA, Levenshtein, Postfix, Prefix
 
 from guard.records import Refinement, Rewrite, RewriteKind, Token, TokenKind
 from guard.text.normalize import strip_accents
@@ -49,43 +49,67 @@ _DIACRITICS = regex.compile(r"[\u0300-\u036f\u1ab0-\u1aff\u1dc0-\u1dff\u20d0-\u2
 _Span = tuple[int, int, TokenKind]
 
 
-def _common_prefix(a: str, b: str) -> int:
-    """Length of the common prefix, by bisection over slice comparisons (done in C)."""
-    lo, hi = 0, min(len(a), len(b))
-    while lo < hi:
-        mid = (lo + hi + 1) // 2
-        if a[:mid] == b[:mid]:
-            lo = mid
-        else:
-            hi = mid - 1
-    return lo
-
-
-def _common_suffix(a: str, b: str, limit: int) -> int:
-    lo, hi = 0, limit
-    while lo < hi:
-        mid = (lo + hi + 1) // 2
-        if a[len(a) - mid :] == b[len(b) - mid :]:
-            lo = mid
-        else:
-            hi = mid - 1
-    return lo
-
-
 def _window(source: str, proposal: str) -> tuple[int, int, int]:
     """``(start, source_end, proposal_end)`` of the region alignment must look at.
 
     Outside it the two texts are equal, and its edges are token boundaries of both.
+    When the change begins right after a space and ends right before one, between plain
+    ASCII characters (the usual word-for-word fix), its own edges are such boundaries:
+    no token but whitespace holds a space, and no ASCII character extends a cluster.
     """
-    prefix = _common_prefix(source, proposal)
-    suffix = _common_suffix(source, proposal, min(len(source), len(proposal)) - prefix)
-    back = _CUT_BACK.search(source, 0, prefix)
-    start = back.start() if back is not None else 0
-    forward = _CUT.search(source, len(source) - suffix + 1) if suffix > 1 else None
-    if forward is None:
+    prefix = Prefix.similarity(source, proposal)
+    suffix = min(Postfix.similarity(source, proposal), min(len(source), len(proposal)) - prefix)
+    start = _cut_before(source, prefix)
+    skip = start  # past plain spaces that end at or before the change
+    while skip < prefix and source[skip] == " ":
+        skip += 1
+    if skip > start and _plain_at(source, skip) and _plain_at(proposal, skip):
+        start = skip
+    src_end, prop_end = len(source) - suffix, len(proposal) - suffix
+    if (
+        suffix
+        and source[src_end] == " "
+        and src_end > start
+        and prop_end > start
+        and _plain_at(source, src_end - 1)
+        and _plain_at(proposal, prop_end - 1)
+    ):
+        return start, src_end, prop_end
+    cut = _cut_after(source, src_end + 1) if suffix > 1 else None
+    if cut is None:
         return start, len(source), len(proposal)
-    kept = len(source) - forward.start()  # common tail left outside the window
+    kept = len(source) - cut  # common tail left outside the window
     return start, len(source) - kept, len(proposal) - kept
+
+
+def _plain_at(text: str, i: int) -> bool:
+    """Whether ``text[i]`` is an ASCII character other than whitespace, or ``i`` is the end."""
+    return i >= len(text) or (text[i].isascii() and not text[i].isspace())
+
+
+def _cut_before(text: str, limit: int) -> int:
+    """The last start of a whitespace run before ``limit`` (0 if none).
+
+    Found with str methods when the space before ``limit`` follows a plain ASCII
+    character (no whitespace run and no Prepend character there), else by the pattern.
+    An earlier cut than the last one would also be right, only wider.
+    """
+    at = text.rfind(" ", 0, limit)
+    while at > 0 and text[at - 1] == " ":
+        at -= 1
+    if at > 0 and text[at - 1].isascii() and not text[at - 1].isspace():
+        return at
+    back = _CUT_BACK.search(text, 0, limit)
+    return back.start() if back is not None else 0
+
+
+def _cut_after(text: str, pos: int) -> int | None:
+    """The first start of a whitespace run at or after ``pos`` (None if none)."""
+    at = text.find(" ", pos)
+    if at > 0 and text[at - 1].isascii() and not text[at - 1].isspace():
+        return at
+    forward = _CUT.search(text, pos)
+    return forward.start() if forward is not None else None
 
 
 def _classify(
@@ -307,8 +331,25 @@ def align(source: str, proposal: str) -> tuple[Rewrite, ...]:
         return ()
     start, src_end, prop_end = _window(source, proposal)
     src_win, prop_win = source[start:src_end], proposal[start:prop_end]
-    a_spans = [(s + start, e + start, k) for s, e, k in spans(src_win)]
-    b_spans = [(s + start, e + start, k) for s, e, k in spans(prop_win)]
+    one_a, one_b = spans(src_win), spans(prop_win)
+    if len(one_a) == 1 and len(one_b) == 1:  # one token for another: the usual fix
+        return (
+            Rewrite(
+                index=0,
+                start=start,
+                end=src_end,
+                old=src_win,
+                new=prop_win,
+                new_start=start,
+                new_end=prop_end,
+                kind=RewriteKind.REPLACE,
+                refinement=_refinement(src_win, prop_win),
+                old_tokens=(Token(text=src_win, start=start, end=src_end, kind=one_a[0][2]),),
+                new_tokens=(Token(text=prop_win, start=start, end=prop_end, kind=one_b[0][2]),),
+            ),
+        )
+    a_spans = [(s + start, e + start, k) for s, e, k in one_a]
+    b_spans = [(s + start, e + start, k) for s, e, k in one_b]
     a = [source[s:e] for s, e, _ in a_spans]
     b = [proposal[s:e] for s, e, _ in b_spans]
     rewrites: list[Rewrite] = []
