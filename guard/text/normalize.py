@@ -57,7 +57,7 @@ def nfc(text: str) -> str:
     >>> nfc("A\u030a") == "\u00c5"
     True
     """
-    if unicodedata.is_normalized("NFC", text):
+    if text.isascii() or unicodedata.is_normalized("NFC", text):
         return text
     return unicodedata.normalize("NFC", text)
 

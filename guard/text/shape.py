@@ -48,7 +48,8 @@ _DIGIT = regex.compile(r"\p{N}")
 
 
 def shape_of(text: str) -> Shape:
-    """The case shape of ``text``.
+    """The case shape of ``text`` (remembered for short texts: rules ask about the same
+    words over and over).
 
     A single capital letter counts as TITLE, not ALLCAPS, so "A" or "I" at the start of
     a sentence is not taken for an acronym. Each run of letters (split at hyphens,
@@ -60,6 +61,18 @@ def shape_of(text: str) -> Shape:
     >>> " ".join(shape_of(w) for w in ("Jean-Luc", "Well-known", "x-Ray", "H2O", "A", "ǅemal"))
     'title title internal-cap allcaps title title'
     """
+    return _shape_of(text) if len(text) <= _CACHED_LENGTH else _find_shape(text)
+
+
+_CACHED_LENGTH = 64
+
+
+@functools.lru_cache(maxsize=1 << 15)
+def _shape_of(text: str) -> Shape:
+    return _find_shape(text)
+
+
+def _find_shape(text: str) -> Shape:
     cased = _CASED.findall(text)
     if not cased:
         return Shape.NOCASE
@@ -235,11 +248,15 @@ def scripts_of(text: str) -> frozenset[str]:
     >>> scripts_of("42 %")
     frozenset()
     """
+    if text.isascii():  # ASCII letters are all Latin; the rest of ASCII is Common
+        return _LATIN if text.upper() != text.lower() else _NONE
     names = {_script_of_char(ch) for ch in _LETTERS_AND_MARKS.findall(text)}
     return frozenset(names - _NEUTRAL)
 
 
 _LETTERS_AND_MARKS = regex.compile(r"[\p{L}\p{M}]")
+_LATIN = frozenset({"Latin"})
+_NONE: frozenset[str] = frozenset()
 
 
 def resolved_script_set(text: str) -> frozenset[str]:
@@ -257,6 +274,8 @@ def resolved_script_set(text: str) -> frozenset[str]:
     >>> sorted(resolved_script_set("カタカナ漢字"))
     ['Jpan']
     """
+    if text.isascii():
+        return _LATIN if text.upper() != text.lower() else _all_scripts()
     result = _all_scripts()
     for ch in text:
         result = result & _extensions_of_char(ch)

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import pytest
+import regex
 
 from guard.text.shape import (
     Shape,
@@ -118,3 +119,15 @@ def test_script_names_use_long_names() -> None:
     assert {"Latin", "Cyrillic", "Greek", "Han", "Common", "Inherited", "Old_Italic"} <= names
     assert {"Tai_Tham", "New_Tai_Lue", "SignWriting", "Nko", "Phags_Pa"} <= names
     assert "Hani" not in names and "Latn" not in names
+
+
+@pytest.mark.parametrize("code", range(128), ids=lambda c: f"U+{c:04X}")
+def test_ascii_shortcut_agrees_with_the_script_tables(code: int) -> None:
+    # Scripts.txt (UAX #24): ASCII letters are Latin, every other ASCII character Common.
+    # The reference is the `regex` module's \p{sc=Latin}, which the ASCII shortcut of
+    # scripts_of and resolved_script_set does not consult.
+    ch = chr(code)
+    latin = regex.match(r"\p{sc=Latin}", ch) is not None
+    assert scripts_of(f"{ch}") == ({"Latin"} if latin else set())
+    assert resolved_script_set(f"x{ch}y") == {"Latin"}
+    assert (resolved_script_set(ch) == {"Latin"}) is latin
