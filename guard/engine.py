@@ -6,13 +6,13 @@ are read-only, so one Guard serves any number of threads. Nothing here does I/O.
 
 from __future__ import annotations
 
-from collections import defaultdict
 from dataclasses import dataclass
 
 from guard.align import align, apply
 from guard.decide import decide, pair_verdict
 from guard.records import Finding, Report, RewriteVerdict, Verdict
 from guard.rules import REGISTRY, PairContext, Rule, Scope
+from guard.rules.base import CheckFn
 from guard.rules.words import PATTERN_TIMEOUT_S
 from guard.ruleset.model import CompiledRuleset, PatternHit, PatternTimeout, RuleSettings
 
@@ -21,6 +21,9 @@ from guard.ruleset.model import CompiledRuleset, PatternHit, PatternTimeout, Rul
 class _Active:
     rule: Rule
     settings: RuleSettings
+
+
+_Bound = tuple[CheckFn, RuleSettings]  # a rule's check with its settings for one language
 
 
 class Engine:
@@ -37,16 +40,16 @@ class Engine:
         ]
         self._rewrite_rules = tuple(a for a in active if a.rule.scope is Scope.REWRITE)
         self._pair_rules = tuple(a for a in active if a.rule.scope is Scope.PAIR)
-        self._by_lang: dict[str, tuple[tuple[_Active, ...], tuple[_Active, ...]]] = {}
+        self._by_lang: dict[str, tuple[tuple[_Bound, ...], tuple[_Bound, ...]]] = {}
 
-    def _rules_for(self, lang: str) -> tuple[tuple[_Active, ...], tuple[_Active, ...]]:
-        """The active rules with settings resolved for ``lang`` (built once per language;
-        a racing thread at worst builds the same tuple twice)."""
+    def _rules_for(self, lang: str) -> tuple[tuple[_Bound, ...], tuple[_Bound, ...]]:
+        """The active rules' checks with settings resolved for ``lang`` (built once per
+        language; a racing thread at worst builds the same tuple twice)."""
         got = self._by_lang.get(lang)
         if got is None:
             got = (
-                tuple(_Active(a.rule, a.settings.for_lang(lang)) for a in self._rewrite_rules),
-                tuple(_Active(a.rule, a.settings.for_lang(lang)) for a in self._pair_rules),
+                tuple((a.rule.check, a.settings.for_lang(lang)) for a in self._rewrite_rules),
+                tuple((a.rule.check, a.settings.for_lang(lang)) for a in self._pair_rules),
             )
             self._by_lang[lang] = got
         return got
@@ -91,14 +94,15 @@ class Engine:
             lexicon=rs.lexicon(lang),
         )
         rewrite_rules, pair_rules = self._rules_for(lang)
-        per_rewrite: dict[int, list[Finding]] = defaultdict(list)
+        per_rewrite: dict[int, list[Finding]] = {}
         for rw in rewrites:
-            found = per_rewrite[rw.index]
-            for a in rewrite_rules:
-                found.extend(a.rule.check(rw, ctx, a.settings))
+            found: list[Finding] = []
+            for check, settings in rewrite_rules:
+                found.extend(check(rw, ctx, settings))
+            per_rewrite[rw.index] = found
         pair_findings: list[Finding] = []
-        for a in pair_rules:
-            pair_findings.extend(a.rule.check(None, ctx, a.settings))
+        for check, settings in pair_rules:
+            pair_findings.extend(check(None, ctx, settings))
         verdicts = decide(rewrites, per_rewrite, pair_findings, rs)
         return Report(
             source=source,
@@ -107,8 +111,8 @@ class Engine:
             verdict=pair_verdict(verdicts),
             rewrites=verdicts,
             pair_findings=tuple(pair_findings),
-            guarded=_guarded(source, verdicts, keep=(Verdict.ACCEPT, Verdict.FLAG)),
-            guarded_strict=_guarded(source, verdicts, keep=(Verdict.ACCEPT,)),
+            guarded=_guarded(source, proposal, verdicts, keep=_ACCEPT_OR_FLAG),
+            guarded_strict=_guarded(source, proposal, verdicts, keep=_ACCEPT_ONLY),
             ruleset=rs.name,
         )
 
@@ -128,5 +132,14 @@ def _pattern_hits(
     return tuple(hits), tuple(timeouts)
 
 
-def _guarded(source: str, verdicts: tuple[RewriteVerdict, ...], keep: tuple[Verdict, ...]) -> str:
-    return apply(source, (v.rewrite for v in verdicts if v.verdict in keep))
+_ACCEPT_OR_FLAG = frozenset({Verdict.ACCEPT, Verdict.FLAG})
+_ACCEPT_ONLY = frozenset({Verdict.ACCEPT})
+
+
+def _guarded(
+    source: str, proposal: str, verdicts: tuple[RewriteVerdict, ...], keep: frozenset[Verdict]
+) -> str:
+    kept = [v.rewrite for v in verdicts if v.verdict in keep]
+    if len(kept) == len(verdicts):
+        return proposal  # all rewrites applied give the proposal (alignment's invariant)
+    return apply(source, kept) if kept else source

@@ -34,7 +34,7 @@ def decide(
             overridden = tuple(f for f in own if f.tier is not Tier.HARD)
         else:
             kept, overridden = own, ()
-        verdict = Verdict.worst(Verdict.of(f.action) for f in kept if f.action is not Action.NOTE)
+        verdict = Verdict.worst(_VERDICT_OF[f.action] for f in kept)
         out.append(
             RewriteVerdict(
                 rewrite=rw,
@@ -45,6 +45,9 @@ def decide(
             )
         )
     return tuple(out)
+
+
+_VERDICT_OF = {action: Verdict.of(action) for action in Action}  # a note counts as accept
 
 
 def pair_verdict(verdicts: Sequence[RewriteVerdict]) -> Verdict:

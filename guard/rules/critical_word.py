@@ -30,16 +30,19 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
     critical = ctx.ruleset.critical
     if not critical:
         return
-    old = Counter(
+    old_keys = [
         k
         for t in content_tokens(rw.old_tokens)
         if (k := normalize_key(t.text, fold=True)) in critical
-    )
-    new = Counter(
+    ]
+    new_keys = [
         k
         for t in content_tokens(rw.new_tokens)
         if (k := normalize_key(t.text, fold=True)) in critical
-    )
+    ]
+    if old_keys == new_keys:  # the usual case: no critical word on either side
+        return
+    old, new = Counter(old_keys), Counter(new_keys)
     if old == new:
         return
     removed = sorted((old - new).elements())

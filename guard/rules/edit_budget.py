@@ -78,8 +78,8 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
     old_words = content_tokens(rw.old_tokens)
     if not old_words:
         return
-    old = _JOINERS.sub("", rw.old).casefold()
-    new = _JOINERS.sub("", rw.new).casefold()
+    old = (rw.old if rw.old.isalnum() else _JOINERS.sub("", rw.old)).casefold()
+    new = (rw.new if rw.new.isalnum() else _JOINERS.sub("", rw.new)).casefold()
     lang = ctx.lang
     cost = settings.option("adjacent-cost", lang)
     per = settings.option("letters-per-edit", lang)

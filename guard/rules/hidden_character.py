@@ -22,6 +22,8 @@ NAME = "hidden-character"
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
     assert rw is not None
+    if rw.new.isascii():  # no ASCII character is Cf, Bidi_Control or default-ignorable
+        return
     added = Counter(ch for _, ch in hidden_characters(rw.new))
     added.subtract(ch for _, ch in hidden_characters(rw.old))
     chars = sorted(ch for ch, n in added.items() if n > 0)

@@ -26,10 +26,13 @@ _DIGITS = regex.compile(r"\p{Nd}+")
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
     assert rw is not None
+    old_literals = [t for t in content_tokens(rw.old_tokens) if t.kind in LITERAL_KINDS]
+    if not old_literals:
+        return
     new_texts = {t.text for t in content_tokens(rw.new_tokens)}
     new_digits = _DIGITS.findall(rw.new)
-    for tok in content_tokens(rw.old_tokens):
-        if tok.kind not in LITERAL_KINDS or tok.text in new_texts:
+    for tok in old_literals:
+        if tok.text in new_texts:
             continue
         digits = _DIGITS.findall(tok.text)
         digits_changed = bool(digits) and digits != new_digits

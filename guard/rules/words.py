@@ -31,6 +31,8 @@ _LETTER = regex.compile(r"\p{L}")
 
 def content_tokens(tokens: tuple[Token, ...]) -> tuple[Token, ...]:
     """The tokens that carry content: not whitespace, punctuation or symbols."""
+    if len(tokens) == 1:  # most rewrites: one token for one
+        return () if tokens[0].kind in _NOT_WORDS else tokens
     return tuple(t for t in tokens if t.kind not in _NOT_WORDS)
 
 
@@ -67,7 +69,7 @@ def zipf(ctx: PairContext, word: str) -> float:
     if lex is None:
         return 0.0
     z = lex.zipf(word)
-    if z > 0.0 or not _JOINERS.search(word):
+    if z > 0.0 or word.isalpha() or not _JOINERS.search(word):
         return z
     parts = [p for p in _JOINERS.split(word) if _LETTER.search(p)]
     if not parts:
@@ -78,6 +80,8 @@ def zipf(ctx: PairContext, word: str) -> float:
 def phrase_zipf(ctx: PairContext, tokens: tuple[Token, ...]) -> float:
     """The rarest word of a phrase: a phrase is no more common than its rarest word."""
     words = content_tokens(tokens)
+    if len(words) == 1:
+        return zipf(ctx, words[0].text)
     if not words:
         return 0.0
     return min(zipf(ctx, t.text) for t in words)
