@@ -140,6 +140,8 @@ def _prepare(record: InputRecord | ErrorRecord, lang_default: str | None, lim: L
     if isinstance(record, ErrorRecord):
         return record, None, record.reason
     for name, text in (("source", record.source), ("proposal", record.proposal)):
+        if len(text) <= lim.max_tokens:
+            continue  # every token holds at least one character
         n = count_tokens(text, lim.max_tokens)
         if n > lim.max_tokens:
             return record, None, f"the {name} has more than {lim.max_tokens} tokens"

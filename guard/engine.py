@@ -10,7 +10,7 @@ from dataclasses import dataclass
 
 from guard.align import align, apply
 from guard.decide import decide, pair_verdict
-from guard.records import Finding, Report, RewriteVerdict, Verdict
+from guard.records import Finding, Report, Rewrite, RewriteVerdict, Verdict
 from guard.rules import REGISTRY, PairContext, Rule, Scope
 from guard.rules.base import CheckFn
 from guard.rules.words import PATTERN_TIMEOUT_S
@@ -26,12 +26,40 @@ class _Active:
 _Bound = tuple[CheckFn, RuleSettings]  # a rule's check with its settings for one language
 
 
+@dataclass(frozen=True, slots=True)
+class _LangRules:
+    """The active rules' checks with their settings resolved for one language."""
+
+    local: tuple[_Bound, ...]  # rewrite rules whose findings the memo may keep
+    placed: tuple[_Bound, ...]  # rewrite rules that read the rest of the pair
+    pair: tuple[_Bound, ...]
+
+
+MEMO_SIZE = 1 << 16
+"""Rewrites whose local findings an engine keeps; it forgets them all when full."""
+
+_RuleMemo = dict[tuple[object, ...], tuple[Finding, ...]]
+
+
 class Engine:
-    """Checks pairs against one compiled ruleset."""
+    """Checks pairs against one compiled ruleset.
 
-    __slots__ = ("_by_lang", "_pair_rules", "_rewrite_rules", "ruleset")
+    A speller makes the same fix again and again ("teh" -> "the"), so the findings of
+    the rules marked ``local`` are kept per rewrite (texts, token kinds, index, language)
+    and reused; ``memo_size=0`` turns that off.
+    """
 
-    def __init__(self, ruleset: CompiledRuleset) -> None:
+    __slots__ = (
+        "_by_lang",
+        "_memo",
+        "_memo_size",
+        "_order",
+        "_pair_rules",
+        "_rewrite_rules",
+        "ruleset",
+    )
+
+    def __init__(self, ruleset: CompiledRuleset, *, memo_size: int = MEMO_SIZE) -> None:
         self.ruleset = ruleset
         active = [
             _Active(rule, ruleset.rules[name])
@@ -40,19 +68,51 @@ class Engine:
         ]
         self._rewrite_rules = tuple(a for a in active if a.rule.scope is Scope.REWRITE)
         self._pair_rules = tuple(a for a in active if a.rule.scope is Scope.PAIR)
-        self._by_lang: dict[str, tuple[tuple[_Bound, ...], tuple[_Bound, ...]]] = {}
+        self._by_lang: dict[str, _LangRules] = {}
+        self._order = {name: i for i, name in enumerate(REGISTRY)}
+        self._memo: _RuleMemo = {}
+        self._memo_size = memo_size
 
-    def _rules_for(self, lang: str) -> tuple[tuple[_Bound, ...], tuple[_Bound, ...]]:
-        """The active rules' checks with settings resolved for ``lang`` (built once per
-        language; a racing thread at worst builds the same tuple twice)."""
+    def _rules_for(self, lang: str) -> _LangRules:
+        """The active rules for ``lang`` (built once per language; a racing thread at
+        worst builds the same tuple twice)."""
         got = self._by_lang.get(lang)
         if got is None:
-            got = (
-                tuple((a.rule.check, a.settings.for_lang(lang)) for a in self._rewrite_rules),
-                tuple((a.rule.check, a.settings.for_lang(lang)) for a in self._pair_rules),
+
+            def bound(actives: tuple[_Active, ...]) -> tuple[_Bound, ...]:
+                return tuple((a.rule.check, a.settings.for_lang(lang)) for a in actives)
+
+            got = _LangRules(
+                local=bound(tuple(a for a in self._rewrite_rules if a.rule.local)),
+                placed=bound(tuple(a for a in self._rewrite_rules if not a.rule.local)),
+                pair=bound(self._pair_rules),
             )
             self._by_lang[lang] = got
         return got
+
+    def _rewrite_findings(self, rw: Rewrite, ctx: PairContext, rules: _LangRules) -> list[Finding]:
+        """Every rewrite rule's findings on ``rw``, in registry order."""
+        memo = self._memo
+        key = _memo_key(ctx.lang, rw) if self._memo_size else None
+        local = memo.get(key) if key is not None else None
+        if local is None:
+            found: list[Finding] = []
+            for check, settings in rules.local:
+                found.extend(check(rw, ctx, settings))
+            local = tuple(found)
+            if key is not None:
+                if len(memo) >= self._memo_size:
+                    memo.clear()
+                memo[key] = local
+        placed: list[Finding] = []
+        for check, settings in rules.placed:
+            placed.extend(check(rw, ctx, settings))
+        if not placed:
+            return list(local)
+        if not local:
+            return placed
+        order = self._order
+        return sorted((*local, *placed), key=lambda f: order[f.rule])
 
     def check(
         self, source: str, proposal: str, *, lang: str | None = None, score: float | None = None
@@ -93,15 +153,10 @@ class Engine:
             ruleset=rs,
             lexicon=rs.lexicon(lang),
         )
-        rewrite_rules, pair_rules = self._rules_for(lang)
-        per_rewrite: dict[int, list[Finding]] = {}
-        for rw in rewrites:
-            found: list[Finding] = []
-            for check, settings in rewrite_rules:
-                found.extend(check(rw, ctx, settings))
-            per_rewrite[rw.index] = found
+        rules = self._rules_for(lang)
+        per_rewrite = {rw.index: self._rewrite_findings(rw, ctx, rules) for rw in rewrites}
         pair_findings: list[Finding] = []
-        for check, settings in pair_rules:
+        for check, settings in rules.pair:
             pair_findings.extend(check(None, ctx, settings))
         verdicts = decide(rewrites, per_rewrite, pair_findings, rs)
         return Report(
@@ -130,6 +185,23 @@ def _pattern_hits(
         except TimeoutError:
             timeouts.append(PatternTimeout(entry=entry))
     return tuple(hits), tuple(timeouts)
+
+
+def _memo_key(lang: str, rw: Rewrite) -> tuple[object, ...]:
+    """What a local rule may read of a rewrite: its texts, kinds, token cut and index."""
+    old, new = rw.old_tokens, rw.new_tokens
+    if len(old) == 1 and len(new) == 1:
+        return (lang, rw.index, rw.old, rw.new, rw.kind, rw.refinement, old[0].kind, new[0].kind)
+    return (
+        lang,
+        rw.index,
+        rw.old,
+        rw.new,
+        rw.kind,
+        rw.refinement,
+        tuple((t.text, t.kind) for t in old),
+        tuple((t.text, t.kind) for t in new),
+    )
 
 
 _ACCEPT_OR_FLAG = frozenset({Verdict.ACCEPT, Verdict.FLAG})

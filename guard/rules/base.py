@@ -74,6 +74,12 @@ class Rule:
     options: Mapping[str, OptionSpec] = field(default_factory=dict)
     check: CheckFn
     doc: str
+    # True when the findings of a rewrite rule depend on nothing but the rewrite's texts
+    # and token kinds, its index, the pair's language, the ruleset and the lexicons: not
+    # on where the rewrite sits, on the other rewrites or on the rest of the text. The
+    # engine then reuses them for the same rewrite in another pair (speller traffic
+    # repeats its fixes); tests/rules/test_locality.py holds every local rule to it.
+    local: bool = False
 
 
 def finding(

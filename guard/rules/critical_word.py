@@ -80,6 +80,7 @@ def _typo_fix(ctx: PairContext, rw: Rewrite, settings: RuleSettings) -> bool:
 RULE = Rule(
     name=NAME,
     scope=Scope.REWRITE,
+    local=True,
     tier=Tier.DOMAIN,
     default_action=Action.VETO,
     options={

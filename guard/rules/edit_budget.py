@@ -108,6 +108,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
 RULE = Rule(
     name=NAME,
     scope=Scope.REWRITE,
+    local=True,
     tier=Tier.EVIDENCE,
     default_action=Action.FLAG,
     options={

@@ -46,6 +46,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
 RULE = Rule(
     name=NAME,
     scope=Scope.REWRITE,
+    local=True,
     tier=Tier.HARD,
     default_action=Action.VETO,
     check=check,

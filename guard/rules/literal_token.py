@@ -68,6 +68,7 @@ def _fixes_toward_domain(ctx: PairContext, old: str, rw: Rewrite, settings: Rule
 RULE = Rule(
     name=NAME,
     scope=Scope.REWRITE,
+    local=True,
     tier=Tier.DOMAIN,
     default_action=Action.VETO,
     options={
