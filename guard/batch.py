@@ -25,7 +25,7 @@ from dataclasses import dataclass, field
 
 from guard.errors import RecordError
 from guard.io.read import ErrorRecord, InputRecord, Limits
-from guard.records import Report, TokenKind, Verdict
+from guard.records import Report, TokenKind, Verdict, quick_init
 from guard.text.tokenize import spans
 
 CRASHED = "the worker process checking this record died"
@@ -34,6 +34,7 @@ NO_WORKERS = "not checked: worker processes kept dying at once; run with one job
 _MAX_DEAD_STARTS = 3
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Outcome:
     """One record and what came of it: a ``report``, or an ``error`` saying why not."""
@@ -43,6 +44,7 @@ class Outcome:
     error: str | None = None
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Job:
     """What a worker needs to check one pair (records stay in the main process)."""

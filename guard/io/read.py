@@ -36,6 +36,7 @@ from dataclasses import dataclass, field
 from typing import IO, Final
 
 from guard.errors import GuardError
+from guard.records import quick_init
 
 FORMATS: Final = ("jsonl", "csv", "tsv", "pairs")
 """Input formats: JSON lines, CSV or TSV with a header, plain ``source<TAB>proposal`` lines."""
@@ -90,6 +91,7 @@ class Limits:
     max_depth: int = 32
 
 
+@quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
 class InputRecord:
     """One pair as read. ``fields`` holds every original field, in input order.
@@ -352,6 +354,15 @@ def _depth_over(value: object, limit: int) -> bool:
     return False
 
 
+def _may_hold_bad_strings(text: str) -> bool:
+    """Whether a string parsed from the JSON ``text`` could hold a control character or a
+    lone surrogate: only when ``text`` holds one itself (DEL and C1 controls may stand
+    unescaped in JSON) or an escape that makes one (\\b, \\f, \\uXXXX). Decoded UTF-8 holds
+    no surrogate, and an escaped backslash before b, f or u errs on the side of looking.
+    """
+    return "\\u" in text or "\\b" in text or "\\f" in text or _CONTROL.search(text) is not None
+
+
 def _bad_strings(value: object) -> str | None:
     """Why a string somewhere in a record cannot be carried through, or None."""
     stack: list[tuple[object, str]] = [(value, "")]
@@ -417,9 +428,10 @@ def _from_mapping(
 
     if not isinstance(value, dict):
         return err(f"not a JSON object (got {_json_kind(value)})")
-    if _depth_over(value, lim.max_depth):
+    flat = text.count("{") == 1 and "[" not in text  # one object, nothing nested in it
+    if not flat and _depth_over(value, lim.max_depth):
         return err(f"JSON nested deeper than {lim.max_depth} levels")
-    bad = _bad_strings(value)
+    bad = _bad_strings(value) if _may_hold_bad_strings(text) else None
     if bad:
         return err(bad)
     return _build(value, display, number, names, err, table=False)
