@@ -34,24 +34,17 @@ def load_ruleset(
     return _load(*(refs or ("base",)), overrides=overrides, allow_outside=allow_outside)
 
 
-class Guard:
-    """Checks (source, proposal) pairs against one ruleset. Safe to share across threads."""
+class Guard(Engine):
+    """Checks (source, proposal) pairs against one ruleset. Safe to share across threads.
 
-    __slots__ = ("_engine",)
+    ``check(source, proposal, lang=..., score=...)`` is the engine's own (no layer in
+    between: a wrapped speller calls it once per query).
+    """
+
+    __slots__ = ()
 
     def __init__(self, ruleset: CompiledRuleset | str | Path = "base") -> None:
-        rs = ruleset if isinstance(ruleset, CompiledRuleset) else load_ruleset(ruleset)
-        self._engine = Engine(rs)
-
-    @property
-    def ruleset(self) -> CompiledRuleset:
-        return self._engine.ruleset
-
-    def check(
-        self, source: str, proposal: str, *, lang: str | None = None, score: float | None = None
-    ) -> Report:
-        """The report on one pair: rewrites, verdicts, findings and guarded text."""
-        return self._engine.check(source, proposal, lang=lang, score=score)
+        super().__init__(ruleset if isinstance(ruleset, CompiledRuleset) else load_ruleset(ruleset))
 
     def wrap(
         self, speller: Speller, *, lang: str | None = None, undo_flagged: bool = False

@@ -37,6 +37,9 @@ def _widen(scripts: frozenset[str]) -> frozenset[str]:
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
     assert rw is not None
+    old = rw.old
+    if rw.new.isascii() and old.isascii() and old.upper() != old.lower():
+        return  # Latin letters for Latin letters: no script added, no ASCII token mixed
     new_scripts = scripts_of(rw.new)
     if not new_scripts:
         return
