@@ -73,6 +73,19 @@ def _shape_of(text: str) -> Shape:
 
 
 def _find_shape(text: str) -> Shape:
+    if text.isascii():  # str's own case tests, read as the general rules below read them
+        if text.islower():
+            return Shape.LOWER
+        if text.isupper():
+            return Shape.ALLCAPS if sum(c.isupper() for c in text) >= 2 else Shape.TITLE
+        if text.istitle():
+            return Shape.TITLE
+        if text.upper() == text.lower():
+            return Shape.NOCASE
+    return _shape_by_letters(text)
+
+
+def _shape_by_letters(text: str) -> Shape:
     cased = _CASED.findall(text)
     if not cased:
         return Shape.NOCASE

@@ -4,9 +4,13 @@ from __future__ import annotations
 
 import pytest
 import regex
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from guard.text.shape import (
     Shape,
+    _find_shape,
+    _shape_by_letters,
     all_scripts,
     has_digit,
     is_mixed_script,
@@ -131,3 +135,11 @@ def test_ascii_shortcut_agrees_with_the_script_tables(code: int) -> None:
     assert scripts_of(f"{ch}") == ({"Latin"} if latin else set())
     assert resolved_script_set(f"x{ch}y") == {"Latin"}
     assert (resolved_script_set(ch) == {"Latin"}) is latin
+
+
+@settings(max_examples=3000, deadline=None)
+@given(st.text(alphabet="aBzQ-'1. _", max_size=8))
+def test_ascii_case_shortcut_agrees_with_the_letter_classes(text: str) -> None:
+    # The ASCII shortcut uses str.islower/isupper/istitle; the general path reads the
+    # Unicode categories Lu, Ll and Lt through the regex module.
+    assert _find_shape(text) is _shape_by_letters(text)
