@@ -96,17 +96,16 @@ class Engine:
         key = _memo_key(ctx.lang, rw) if self._memo_size else None
         local = memo.get(key) if key is not None else None
         if local is None:
-            found: list[Finding] = []
-            for check, settings in rules.local:
-                found.extend(check(rw, ctx, settings))
-            local = tuple(found)
+            local = tuple(
+                f for check, settings in rules.local if (f := check(rw, ctx, settings)) is not None
+            )
             if key is not None:
                 if len(memo) >= self._memo_size:
                     memo.clear()
                 memo[key] = local
-        placed: list[Finding] = []
-        for check, settings in rules.placed:
-            placed.extend(check(rw, ctx, settings))
+        placed = [
+            f for check, settings in rules.placed if (f := check(rw, ctx, settings)) is not None
+        ]
         if not placed:
             return list(local)
         if not local:
@@ -155,9 +154,9 @@ class Engine:
         )
         rules = self._rules_for(lang)
         per_rewrite = {rw.index: self._rewrite_findings(rw, ctx, rules) for rw in rewrites}
-        pair_findings: list[Finding] = []
-        for check, settings in rules.pair:
-            pair_findings.extend(check(None, ctx, settings))
+        pair_findings = [
+            f for check, settings in rules.pair if (f := check(None, ctx, settings)) is not None
+        ]
         verdicts = decide(rewrites, per_rewrite, pair_findings, rs)
         return Report(
             source=source,

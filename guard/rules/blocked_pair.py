@@ -7,7 +7,7 @@ Matching folds case, on the whole rewrite and on each changed word.
 
 from __future__ import annotations
 
-from collections.abc import Iterator, Mapping
+from collections.abc import Mapping
 
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import PairContext, Rule, Scope, finding
@@ -39,13 +39,13 @@ def find_pair(table: Mapping[tuple[str, str], PairEntry], rw: Rewrite) -> PairEn
     return None
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if not ctx.ruleset.blocked:
-        return
+        return None
     hit = find_pair(ctx.ruleset.blocked, rw)
     if hit is not None:
-        yield finding(
+        return finding(
             NAME,
             Tier.HARD,
             settings,
@@ -55,6 +55,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             old=hit.old,
             new=hit.new,
         )
+    return None
 
 
 RULE = Rule(

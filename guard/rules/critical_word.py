@@ -14,7 +14,6 @@ Vetoes: with "not" critical, "do not stop" -> "do now stop"; with "mg" critical,
 from __future__ import annotations
 
 from collections import Counter
-from collections.abc import Iterator
 
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
@@ -25,11 +24,11 @@ from guard.text.normalize import normalize_key
 NAME = "critical-word"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     critical = ctx.ruleset.critical
     if not critical:
-        return
+        return None
     old_keys = [
         k
         for t in content_tokens(rw.old_tokens)
@@ -41,17 +40,17 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
         if (k := normalize_key(t.text, fold=True)) in critical
     ]
     if old_keys == new_keys:  # the usual case: no critical word on either side
-        return
+        return None
     old, new = Counter(old_keys), Counter(new_keys)
     if old == new:
-        return
+        return None
     removed = sorted((old - new).elements())
     added = sorted((new - old).elements())
     if not removed and settings.option("allow-typo-fix", ctx.lang) and _typo_fix(ctx, rw, settings):
-        return
+        return None
     word = (removed or added)[0]
     entry = critical[word]
-    yield finding(
+    return finding(
         NAME,
         Tier.DOMAIN,
         settings,

@@ -13,8 +13,6 @@ four-letter word, budget 1).
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 import regex
 from rapidfuzz.distance import OSA, Levenshtein
 
@@ -71,13 +69,13 @@ def weighted_distance(old: str, new: str, adjacent_cost: float) -> float:
     return max(dist - near * (1.0 - adjacent_cost), adjacent_cost)
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if rw.refinement is not None or rw.kind in (RewriteKind.INSERT, RewriteKind.DELETE):
-        return
+        return None
     old_words = content_tokens(rw.old_tokens)
     if not old_words:
-        return
+        return None
     old = (rw.old if rw.old.isalnum() else _JOINERS.sub("", rw.old)).casefold()
     new = (rw.new if rw.new.isalnum() else _JOINERS.sub("", rw.new)).casefold()
     lang = ctx.lang
@@ -88,10 +86,10 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
     letters = max(len(t.text) for t in old_words)
     budget = min(cap, max(1, letters // max(per, 1)))
     if OSA.distance(old, new, score_cutoff=budget) <= budget:
-        return  # within budget before any keyboard discount
+        return None  # within budget before any keyboard discount
     dist = weighted_distance(old, new, cost)
     if dist > budget:
-        yield finding(
+        return finding(
             NAME,
             Tier.EVIDENCE,
             settings,
@@ -103,6 +101,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             letters=letters,
             budget=budget,
         )
+    return None
 
 
 RULE = Rule(

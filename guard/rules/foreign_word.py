@@ -11,8 +11,6 @@ Flags: with other-languages = ["de"], "the Zeitgeist" -> "the Seitgeist".
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, Tier, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.words import zipf
@@ -21,7 +19,7 @@ from guard.ruleset.model import RuleSettings
 NAME = "foreign-word"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     listed = ctx.ruleset.other_languages
     if settings.option("include-ruleset-languages", ctx.lang):
@@ -29,7 +27,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
     primary = ctx.lang.split("-", 1)[0].lower()
     others = [lang for lang in dict.fromkeys(listed) if lang.split("-", 1)[0].lower() != primary]
     if not others:
-        return
+        return None
     min_zipf = settings.option("min-zipf", ctx.lang)
     assert isinstance(min_zipf, float)
     for tok in rw.old_tokens:
@@ -42,7 +40,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
                 continue
             there = lex.zipf(tok.text)
             if there >= min_zipf and there > here:
-                yield finding(
+                return finding(
                     NAME,
                     Tier.EVIDENCE,
                     settings,
@@ -55,7 +53,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
                     zipf_other=there,
                     zipf_here=here,
                 )
-                return
+    return None
 
 
 RULE = Rule(

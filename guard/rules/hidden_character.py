@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import unicodedata
 from collections import Counter
-from collections.abc import Iterator
 
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import PairContext, Rule, Scope, finding
@@ -20,18 +19,18 @@ from guard.text.normalize import hidden_characters
 NAME = "hidden-character"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if rw.new.isascii():  # no ASCII character is Cf, Bidi_Control or default-ignorable
-        return
+        return None
     added = Counter(ch for _, ch in hidden_characters(rw.new))
     added.subtract(ch for _, ch in hidden_characters(rw.old))
     chars = sorted(ch for ch, n in added.items() if n > 0)
     if not chars:
-        return
+        return None
     points = tuple(f"U+{ord(c):04X}" for c in chars)
     names = tuple(unicodedata.name(c, "unnamed") for c in chars)
-    yield finding(
+    return finding(
         NAME,
         Tier.HARD,
         settings,

@@ -12,8 +12,6 @@ Vetoes: "NASA" -> "Nasa"; "JSON" -> "Jason". Flags: "met Mrs Kowalczyk" -> "met 
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from rapidfuzz.distance import OSA
 
 from guard.records import Action, Finding, Rewrite, Tier, Token, TokenKind
@@ -26,7 +24,7 @@ NAME = "letter-shape"
 _SENTENCE_END = frozenset(".!?:;\n…。！？")
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     new_tokens = content_tokens(rw.new_tokens)
     new_texts = {t.text for t in new_tokens}
@@ -45,7 +43,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             continue
         if _is_typo_fix(ctx, tok.text, shape, rw, settings):
             continue
-        yield finding(
+        return finding(
             NAME,
             Tier.DOMAIN,
             settings,
@@ -55,7 +53,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             token=tok.text,
             shape=shape.value,
         )
-        return
+    return None
 
 
 def _sentence_start(ctx: PairContext, tok: Token) -> bool:

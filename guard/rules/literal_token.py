@@ -11,8 +11,6 @@ Vetoes: "--colour=auto" -> "--color=auto"; "HM-2207" -> "HM-2270"; "3.5mm" -> "3
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 import regex
 
 from guard.records import LITERAL_KINDS, Action, Finding, Rewrite, Tier
@@ -24,11 +22,11 @@ NAME = "literal-token"
 _DIGITS = regex.compile(r"\p{Nd}+")
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     old_literals = [t for t in content_tokens(rw.old_tokens) if t.kind in LITERAL_KINDS]
     if not old_literals:
-        return
+        return None
     new_texts = {t.text for t in content_tokens(rw.new_tokens)}
     new_digits = _DIGITS.findall(rw.new)
     for tok in old_literals:
@@ -38,7 +36,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
         digits_changed = bool(digits) and digits != new_digits
         if not digits_changed and _fixes_toward_domain(ctx, tok.text, rw, settings):
             continue
-        yield finding(
+        return finding(
             NAME,
             Tier.DOMAIN,
             settings,
@@ -49,7 +47,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             kind=tok.kind.value,
             digits_changed=digits_changed,
         )
-        return
+    return None
 
 
 def _fixes_toward_domain(ctx: PairContext, old: str, rw: Rewrite, settings: RuleSettings) -> bool:

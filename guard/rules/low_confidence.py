@@ -9,8 +9,6 @@ Accepts: score 0.93 with min-score 0.5. Flags: score 0.21 with min-score 0.5.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.ruleset.model import RuleSettings
@@ -18,12 +16,12 @@ from guard.ruleset.model import RuleSettings
 NAME = "low-confidence"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is None
     min_score = settings.option("min-score", ctx.lang)
     assert isinstance(min_score, float)
     if ctx.score is not None and ctx.rewrites and ctx.score < min_score:
-        yield finding(
+        return finding(
             NAME,
             Tier.EVIDENCE,
             settings,
@@ -32,6 +30,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             score=ctx.score,
             min_score=min_score,
         )
+    return None
 
 
 RULE = Rule(

@@ -8,8 +8,6 @@ Accepts (no note): a pair in "en". Notes: a pair in "xx-unknown" with a rewrite.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import PairContext, Rule, Scope, finding
 from guard.ruleset.model import RuleSettings
@@ -17,10 +15,10 @@ from guard.ruleset.model import RuleSettings
 NAME = "no-lexicon"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is None
     if ctx.lexicon is None and ctx.rewrites:
-        yield finding(
+        return finding(
             NAME,
             Tier.EVIDENCE,
             settings,
@@ -28,6 +26,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             rewrite=None,
             lang=ctx.lang,
         )
+    return None
 
 
 RULE = Rule(

@@ -10,8 +10,6 @@ Vetoes: with the same pattern, "HM-2207" -> "HM-2270".
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import PairContext, Rule, Scope, finding
 from guard.ruleset.model import RuleSettings
@@ -19,14 +17,14 @@ from guard.ruleset.model import RuleSettings
 NAME = "protected-pattern"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     for hit in ctx.pattern_hits:
         touches = not (hit.end <= rw.start or hit.start >= rw.end) or (
             rw.start == rw.end and hit.start < rw.start < hit.end
         )
         if touches:
-            yield finding(
+            return finding(
                 NAME,
                 Tier.DOMAIN,
                 settings,
@@ -37,9 +35,8 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
                 kind=hit.entry.kind,
                 found=ctx.source[hit.start : hit.end],
             )
-            return
     for timeout in ctx.pattern_timeouts:
-        yield finding(
+        return finding(
             NAME,
             Tier.DOMAIN,
             settings,
@@ -50,7 +47,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             pattern=timeout.entry.name,
             timed_out=True,
         )
-        return
+    return None
 
 
 RULE = Rule(

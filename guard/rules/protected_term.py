@@ -15,8 +15,6 @@ file and line.
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.ruleset.model import CasePolicy, RuleSettings
@@ -25,7 +23,7 @@ from guard.text.normalize import normalize_key
 NAME = "protected-term"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     for hit in ctx.term_hits:
         inside = rw.start == rw.end and hit.start < rw.start < hit.end  # an insertion
@@ -36,7 +34,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             rw.new, fold=True
         ):
             continue
-        yield finding(
+        return finding(
             NAME,
             Tier.DOMAIN,
             settings,
@@ -47,14 +45,13 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             kind=entry.kind,
             found=ctx.source[hit.start : hit.end],
         )
-        return
     kinds = settings.option("flag-toward-kinds", ctx.lang)
     assert isinstance(kinds, tuple)
     if kinds:
         target = ctx.ruleset.lookup_term(rw.new.strip())
         same = target is not None and ctx.ruleset.lookup_term(rw.old.strip()) == target
         if target is not None and target.kind in kinds and not same:
-            yield finding(
+            return finding(
                 NAME,
                 Tier.DOMAIN,
                 settings,
@@ -66,6 +63,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
                 term=target.term,
                 kind=target.kind,
             )
+    return None
 
 
 RULE = Rule(

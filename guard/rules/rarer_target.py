@@ -9,8 +9,6 @@ Accepts: "recieve" -> "receive". Flags: "cache" -> "cachet".
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, RewriteKind, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.real_word import SKIP
@@ -20,22 +18,22 @@ from guard.ruleset.model import RuleSettings
 NAME = "rarer-target"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if (
         ctx.lexicon is None
         or rw.refinement in SKIP
         or rw.kind in (RewriteKind.INSERT, RewriteKind.DELETE)
     ):
-        return
+        return None
     if not content_tokens(rw.old_tokens) or not content_tokens(rw.new_tokens):
-        return
+        return None
     margin = settings.option("margin", ctx.lang)
     assert isinstance(margin, float)
     z_old = phrase_zipf(ctx, rw.old_tokens)
     z_new = phrase_zipf(ctx, rw.new_tokens)
     if z_old > 0.0 and z_new < z_old - margin:
-        yield finding(
+        return finding(
             NAME,
             Tier.EVIDENCE,
             settings,
@@ -46,6 +44,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             zipf_old=z_old,
             zipf_new=z_new,
         )
+    return None
 
 
 RULE = Rule(

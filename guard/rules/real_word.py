@@ -16,8 +16,6 @@ Accepts: "teh" -> "the" (Zipf gain above min-gain). Vetoes: "kernel" -> "kennel"
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Refinement, Rewrite, RewriteKind, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.words import content_tokens, phrase_zipf, zipf
@@ -39,13 +37,13 @@ def _split_of_known_word(rw: Rewrite, ctx: PairContext, settings: RuleSettings) 
     return z if z >= floor else None
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if ctx.lexicon is None or rw.kind is RewriteKind.INSERT:
-        return
+        return None
     split_zipf = _split_of_known_word(rw, ctx, settings)
     if split_zipf is not None:
-        yield finding(
+        return finding(
             NAME,
             Tier.EVIDENCE,
             settings,
@@ -56,21 +54,20 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             lang=ctx.lang,
             zipf_old=split_zipf,
         )
-        return
     if rw.refinement in SKIP:
-        return
+        return None
     if not content_tokens(rw.old_tokens):
-        return
+        return None
     min_zipf = settings.option("min-zipf", ctx.lang)
     min_gain = settings.option("min-gain", ctx.lang)
     assert isinstance(min_zipf, float) and isinstance(min_gain, float)
     z_old = phrase_zipf(ctx, rw.old_tokens)
     if z_old < min_zipf:
-        return
+        return None
     z_new = phrase_zipf(ctx, rw.new_tokens) if content_tokens(rw.new_tokens) else 0.0
     if z_new - z_old >= min_gain:
-        return
-    yield finding(
+        return None
+    return finding(
         NAME,
         Tier.EVIDENCE,
         settings,

@@ -11,8 +11,6 @@ Vetoes: "the bilge pump is noisy today" -> "a quiet pump was fitted yesterday".
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.words import content_tokens
@@ -21,10 +19,10 @@ from guard.ruleset.model import RuleSettings
 NAME = "rewrite-density"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is None
     if not ctx.rewrites:
-        return
+        return None
     words = ctx.source_words
     min_words = settings.option("min-words", ctx.lang)
     max_share = settings.option("max-share", ctx.lang)
@@ -37,7 +35,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
     changed = sum(len(content_tokens(r.old_tokens)) or 1 for r in ctx.rewrites)
     share = changed / max(words, 1)
     if words >= min_words and share > max_share:
-        yield finding(
+        return finding(
             NAME,
             Tier.EVIDENCE,
             settings,
@@ -49,7 +47,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             max_share=max_share,
         )
     elif max_rewrites and len(ctx.rewrites) > max_rewrites:
-        yield finding(
+        return finding(
             NAME,
             Tier.EVIDENCE,
             settings,
@@ -58,6 +56,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             count=len(ctx.rewrites),
             max_rewrites=max_rewrites,
         )
+    return None
 
 
 RULE = Rule(

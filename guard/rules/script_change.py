@@ -10,8 +10,6 @@ Vetoes: "paypal" -> "pаypal" (U+0430 CYRILLIC SMALL LETTER A brought into a Lat
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import PairContext, Rule, Scope, finding
 from guard.rules.words import content_tokens
@@ -35,18 +33,18 @@ def _widen(scripts: frozenset[str]) -> frozenset[str]:
     return frozenset(out)
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     old = rw.old
     if rw.new.isascii() and old.isascii() and old.upper() != old.lower():
-        return  # Latin letters for Latin letters: no script added, no ASCII token mixed
+        return None  # Latin letters for Latin letters: no script added, no ASCII token mixed
     new_scripts = scripts_of(rw.new)
     if not new_scripts:
-        return
+        return None
     old_scripts = scripts_of(rw.old) or scripts_of(ctx.source)
     added = new_scripts - _widen(old_scripts)
     if old_scripts and added:
-        yield finding(
+        return finding(
             NAME,
             Tier.HARD,
             settings,
@@ -57,7 +55,6 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
             old_scripts=tuple(sorted(old_scripts)),
             new_scripts=tuple(sorted(new_scripts)),
         )
-        return
     # A token that was mixed-script already (the speller fixing a typo elsewhere in it)
     # is only the rewrite's doing when the rewrite brings in a script it did not have.
     old_mixed = [t.text for t in content_tokens(rw.old_tokens) if is_mixed_script(t.text)]
@@ -66,7 +63,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
         if tok.text in old_mixed or (old_mixed and scripts_of(tok.text) <= old_mixed_scripts):
             continue
         if is_mixed_script(tok.text):
-            yield finding(
+            return finding(
                 NAME,
                 Tier.HARD,
                 settings,
@@ -75,7 +72,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
                 token=tok.text,
                 scripts=" + ".join(sorted(scripts_of(tok.text))),
             )
-            return
+    return None
 
 
 RULE = Rule(

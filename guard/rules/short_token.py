@@ -7,8 +7,6 @@ Accepts: "teh" -> "the" (three letters, above the default). Vetoes: "ml" -> "my"
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Refinement, Rewrite, Tier, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.ruleset.model import RuleSettings
@@ -16,16 +14,16 @@ from guard.ruleset.model import RuleSettings
 NAME = "short-token"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if rw.refinement is Refinement.CASE:
-        return
+        return None
     max_len = settings.option("max-length", ctx.lang)
     assert isinstance(max_len, int)
     new_texts = {t.text for t in rw.new_tokens}
     for tok in rw.old_tokens:
         if tok.kind is TokenKind.WORD and len(tok.text) <= max_len and tok.text not in new_texts:
-            yield finding(
+            return finding(
                 NAME,
                 Tier.EVIDENCE,
                 settings,
@@ -34,7 +32,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
                 word=tok.text,
                 length=len(tok.text),
             )
-            return
+    return None
 
 
 RULE = Rule(

@@ -7,8 +7,6 @@ Accepts: "recieve" -> "receive". Flags: "recieve" -> "receeve".
 
 from __future__ import annotations
 
-from collections.abc import Iterator
-
 from guard.records import Action, Finding, Rewrite, Tier, TokenKind
 from guard.rules.base import PairContext, Rule, Scope, finding
 from guard.rules.words import domain_known, zipf
@@ -17,16 +15,16 @@ from guard.ruleset.model import RuleSettings
 NAME = "unknown-target"
 
 
-def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Iterator[Finding]:
+def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if ctx.lexicon is None:
-        return
+        return None
     old_texts = {t.text for t in rw.old_tokens}
     for tok in rw.new_tokens:
         if tok.kind is not TokenKind.WORD or tok.text in old_texts:
             continue
         if zipf(ctx, tok.text) == 0.0 and not domain_known(ctx, tok.text):
-            yield finding(
+            return finding(
                 NAME,
                 Tier.EVIDENCE,
                 settings,
@@ -35,7 +33,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Itera
                 word=tok.text,
                 lang=ctx.lang,
             )
-            return
+    return None
 
 
 RULE = Rule(
