@@ -177,6 +177,9 @@ def _outcome(record: InputRecord | ErrorRecord, result: Report | str) -> Outcome
 # The checker of a worker process, set once by the pool's initializer: a process pool
 # gives no other place to keep per-process state between tasks.
 _WORKER_CHECK: Checker | None = None
+# A checker the parent built before forking, with the factory and refs it came from:
+# forked workers take it as it is (copy-on-write) instead of loading the ruleset again.
+_FORKED: tuple[CheckerFactory, tuple[str, ...], Checker] | None = None
 
 
 def _start_method() -> str:
@@ -189,24 +192,25 @@ def _start_method() -> str:
     return "spawn"
 
 
-def _warm_lexicons(refs: tuple[str, ...]) -> None:
-    """Load the word frequencies of the rulesets' languages once, before forking."""
-    from guard.api import load_ruleset
-    from guard.ruleset.lexicon import get_lexicon
-
+def _build_before_fork(factory: CheckerFactory, refs: tuple[str, ...]) -> None:
+    """Build the checker (ruleset, word frequencies) once in the parent, for every forked
+    worker to inherit; a ruleset error is left for each worker to report."""
+    global _FORKED
     try:
-        ruleset = load_ruleset(*refs)
-    except Exception:  # the factory reports ruleset errors in each worker
-        return
-    for lang in (*ruleset.languages, *ruleset.other_languages):
-        get_lexicon(lang)
+        _FORKED = (factory, refs, factory(refs))
+    except Exception:
+        _FORKED = None
 
 
 def _init_worker(factory: CheckerFactory, refs: tuple[str, ...]) -> None:
     global _WORKER_CHECK
     # Ctrl-C goes to the whole process group; only the main process decides what to do.
     signal.signal(signal.SIGINT, signal.SIG_IGN)
-    _WORKER_CHECK = factory(refs)
+    forked = _FORKED
+    if forked is not None and forked[0] is factory and forked[1] == refs:
+        _WORKER_CHECK = forked[2]
+    else:
+        _WORKER_CHECK = factory(refs)
 
 
 def _work(jobs: list[Job | None]) -> list[Report | str | None]:
@@ -244,7 +248,7 @@ class _Pool:
             return
         method = self.mp_context or _start_method()
         if method == "fork" and self.generation == 0:
-            _warm_lexicons(self.refs)
+            _build_before_fork(self.factory, self.refs)
         self.executor = ProcessPoolExecutor(
             max_workers=self.jobs,
             mp_context=multiprocessing.get_context(method),
