@@ -1,0 +1,45 @@
+"""The pipeline's records: frozen, complete when created, and unchanged by a trip through
+pickle (batch workers send every report to the main process that way)."""
+
+from __future__ import annotations
+
+import copy
+import dataclasses
+import pickle
+
+import pytest
+
+from guard.api import Guard
+from guard.records import Origin, Report, Token, TokenKind
+
+PAIRS = [
+    pytest.param("Send the JSON file", "Send the Jason file", id="vetoed"),
+    pytest.param("teh pump is brokn", "the pump is broken", id="accepted"),
+    pytest.param("a note book here", "a notebook here", id="join"),
+    pytest.param("same text", "same text", id="unchanged"),
+]
+
+
+@pytest.fixture(scope="module")
+def guard() -> Guard:
+    return Guard("base")
+
+
+@pytest.mark.parametrize(("source", "proposal"), PAIRS)
+@pytest.mark.parametrize("protocol", [2, pickle.HIGHEST_PROTOCOL], ids=["p2", "highest"])
+def test_a_report_survives_pickle(guard: Guard, source: str, proposal: str, protocol: int) -> None:
+    report = guard.check(source, proposal, lang="en")
+    back = pickle.loads(pickle.dumps(report, protocol=protocol))
+    assert back == report and type(back) is Report
+    assert [rv.rewrite for rv in back.rewrites] == [rv.rewrite for rv in report.rewrites]
+    assert hash(back.rewrites) == hash(report.rewrites)
+    assert copy.deepcopy(report) == report
+
+
+def test_records_stay_frozen_and_keep_defaults() -> None:
+    tok = Token(text="pump", start=0, end=4, kind=TokenKind.WORD)
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        tok.text = "pimp"  # type: ignore[misc]
+    assert Origin(file="a.toml") == Origin(file="a.toml", line=None, key=None)
+    with pytest.raises(TypeError):
+        Token("pump", 0, 4, TokenKind.WORD)  # type: ignore[misc]  # keyword-only
