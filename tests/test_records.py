@@ -42,4 +42,4 @@ def test_records_stay_frozen_and_keep_defaults() -> None:
         tok.text = "pimp"  # type: ignore[misc]
     assert Origin(file="a.toml") == Origin(file="a.toml", line=None, key=None)
     with pytest.raises(TypeError):
-        Token("pump", 0, 4, TokenKind.WORD)  # type: ignore[misc]  # keyword-only
+        Token("pump", 0, 4, TokenKind.WORD)  # type: ignore[call-arg]  # keyword-only
