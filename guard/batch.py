@@ -15,6 +15,7 @@ This module never prints; it only turns records into outcomes and counts them.
 from __future__ import annotations
 
 import functools
+import gc
 import multiprocessing
 import signal
 from collections import Counter, deque
@@ -73,6 +74,11 @@ def guard_checker(
     from guard.api import Guard, load_ruleset
 
     engine = Guard(load_ruleset(*ruleset_refs, overrides=overrides))
+    # The ruleset and word lists live as long as the batch: the cyclic garbage collector
+    # need not walk them again each time it looks at the oldest generation (one such walk
+    # took 76 ms with 100k terms, a p99 spike for whichever record triggered it).
+    gc.collect()
+    gc.freeze()
 
     def check(job: Job) -> Report:
         return engine.check(job.source, job.proposal, lang=job.lang, score=job.score)
