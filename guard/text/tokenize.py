@@ -39,6 +39,7 @@ flags stay with their base.
 from __future__ import annotations
 
 import functools
+import re
 
 import regex
 
@@ -209,15 +210,22 @@ def spans(text: str) -> tuple[Span, ...]:
      (4, 6, <TokenKind.WORD: 'word'>), (6, 7, <TokenKind.SPACE: 'space'>),
      (7, 12, <TokenKind.NUMBER: 'number'>))
     """
-    if text.isascii() and text.replace(" ", "").isalpha():
+    if text.isascii() and (text.replace(" ", "").isalpha() or _SIMPLE.fullmatch(text)):
         return _plain_spans(text)
     if len(text) <= _CACHED_LENGTH:
         return _cached_spans(text)
     return _scan(text)
 
 
+# ASCII words of letters, digits and underscores, joined by single hyphens (pump,
+# XR-220, well-known, get_user), between plain spaces: the token pattern makes each one
+# token (its "prose" or "word" branch) and classifies it as _plain_kind or _chunk_kind do.
+_SIMPLE_WORD = r"[A-Za-z0-9_]+(?:-[A-Za-z0-9_]+)*"
+_SIMPLE = re.compile(rf" *(?:{_SIMPLE_WORD}(?: +{_SIMPLE_WORD})*)? *")
+
+
 def _plain_spans(text: str) -> tuple[Span, ...]:
-    """Spans of ASCII letters and spaces, which the token pattern would cut at the spaces.
+    """Spans of ASCII words and spaces, which the token pattern would cut at the spaces.
 
     A speller's change is mostly one plain word for another, and the general pattern
     costs microseconds per token in the regex module; this is what it gives for such
@@ -235,7 +243,8 @@ def _plain_spans(text: str) -> tuple[Span, ...]:
             stop = text.find(" ", at)
             if stop < 0:
                 stop = n
-            out.append((at, stop, _plain_kind(text[at:stop])))
+            word = text[at:stop]
+            out.append((at, stop, _plain_kind(word) if word.isalpha() else _chunk_kind(word)))
         at = stop
     return tuple(out)
 
@@ -263,7 +272,7 @@ def _scan(text: str) -> tuple[Span, ...]:
             at = start
             for word in text[start:end].split(" "):
                 stop = at + len(word)
-                out.append((at, stop, _plain_kind(word)))
+                out.append((at, stop, _plain_kind(word) if word.isalpha() else _chunk_kind(word)))
                 out.append((stop, stop + 1, _SPACE))
                 at = stop + 1
             out.pop()  # the split made one space too many

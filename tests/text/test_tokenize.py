@@ -224,11 +224,13 @@ def test_tokens_tile_the_text(text: str) -> None:
     assert tuple((t.start, t.end, t.kind) for t in tokens) == spans(text)
 
 
-# Words of ASCII letters in every case pattern (camelCase, PascalCase, ALLCAPS, one letter)
-# and runs of spaces: the text the fast path for plain words takes.
+# Words of ASCII letters in every case pattern (camelCase, PascalCase, ALLCAPS, one
+# letter), codes and numbers with hyphens and underscores, stray hyphens, and runs of
+# spaces: the text the fast path for plain words takes, and text just outside it.
 PLAIN = st.lists(
     st.from_regex(
-        r"[a-z]{1,6}|[A-Z][a-z]{0,5}|[a-z]{2,4}[A-Z][a-z]{0,3}|[A-Z]{1,4}[a-z]{0,3}| {1,3}",
+        r"[a-z]{1,6}|[A-Z][a-z]{0,5}|[a-z]{2,4}[A-Z][a-z]{0,3}|[A-Z]{1,4}[a-z]{0,3}| {1,3}"
+        r"|[A-Z]{1,3}[0-9]{0,4}-[0-9]{1,4}[A-Z]?|[0-9]{1,4}|[a-z_]{1,4}_[a-z]{1,4}|-",
         fullmatch=True,
     ),
     max_size=10,
