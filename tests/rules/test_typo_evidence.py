@@ -1,0 +1,96 @@
+"""The evidence refinements that tell a typo fix from a speller overcorrection.
+
+Each case runs through the bundled base ruleset (its tuned operating point). The Zipf
+values the rules rely on are wordfreq's own (the reference library); the edit distances
+are checked here against jellyfish, which the rules do not call. The word pairs are
+textbook cases of the trade (common practice, no source).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import jellyfish
+import pytest
+
+from guard.api import Guard, load_ruleset
+from guard.records import Action, Report
+
+
+@pytest.fixture(scope="module")
+def base() -> Guard:
+    return Guard(load_ruleset("base"))
+
+
+def actions(report: Report, rule: str) -> set[Action]:
+    found = list(report.findings)
+    for rv in report.rewrites:
+        found.extend(rv.overridden)
+    return {f.action for f in found if f.rule == rule}
+
+
+# (source, proposal, lang, OSA distance of the changed words, expected real-word action)
+GAIN_CASES = [
+    # "teh" is listed (wordfreq Zipf 3.0: a frequent misspelling); "the" is 4.7 higher and
+    # one transposition away: the exemption for frequent misspellings holds.
+    ("see teh docs", "see the docs", "en", ("teh", "the", 1), None),
+    # "errno" is listed (Zipf 1.1), "earn" 3.4 higher but two edits away: a listed word two
+    # edits from a commoner one is another word, not a double typo.
+    ("check errno first", "check earn first", "en", ("errno", "earn", 2), Action.VETO),
+    # "heap" in Spanish text (Zipf 2.1 in es) -> "ha" (6.3): two deletions.
+    ("el heap crece", "el ha crece", "es", ("heap", "ha", 2), Action.VETO),
+]
+
+
+@pytest.mark.parametrize(
+    ("source", "proposal", "lang", "distance", "expected"),
+    GAIN_CASES,
+    ids=[f"{c[0]}->{c[1]}" for c in GAIN_CASES],
+)
+def test_real_word_gain_only_within_reach_of_a_misspelling(
+    base: Guard,
+    source: str,
+    proposal: str,
+    lang: str,
+    distance: tuple[str, str, int],
+    expected: Action | None,
+) -> None:
+    old, new, d = distance
+    # jellyfish's Damerau-Levenshtein equals OSA on these pairs (no substring edited twice)
+    assert jellyfish.damerau_levenshtein_distance(old, new) == d
+    got = actions(base.check(source, proposal, lang=lang), "real-word")
+    assert got == (set() if expected is None else {expected})
+
+
+def test_real_word_gain_reach_is_a_setting(tmp_path: Path) -> None:
+    """With no distance limit the old behaviour returns: the gain alone passes "errno"."""
+    extra = tmp_path / "ruleset.toml"
+    extra.write_text(
+        '[ruleset]\nname = "any-distance"\nextends = ["base"]\n\n'
+        "[rules.real-word]\ngain-max-distance = -1\n",
+        encoding="utf-8",
+    )
+    report = Guard(load_ruleset(extra)).check("check errno first", "check earn first", lang="en")
+    assert actions(report, "real-word") == set()
+
+
+# (source, proposal, expected rewrite-density action)
+DENSITY_CASES = [
+    # Every word a slip, each an unlisted word one edit from a listed one (wordfreq Zipf 0
+    # or 1.3 against 3.9 to 6.1): fixing all of them is a speller's job, not a paraphrase.
+    ("quikc borwn fxo jumsp ovre", "quick brown fox jumps over", None),
+    # Every listed word replaced by another listed word is a rewrite of the text.
+    ("quick brown fox jumps over", "slow grey cat walks under", Action.VETO),
+]
+
+
+@pytest.mark.parametrize(
+    ("source", "proposal", "expected"),
+    DENSITY_CASES,
+    ids=["typo-dense line fixed", "line paraphrased"],
+)
+def test_rewrite_density_does_not_count_plain_typo_fixes(
+    base: Guard, source: str, proposal: str, expected: Action | None
+) -> None:
+    got = actions(base.check(source, proposal, lang="en"), "rewrite-density")
+    assert got == (set() if expected is None else {expected})
