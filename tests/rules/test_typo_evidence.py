@@ -23,10 +23,9 @@ def base() -> Guard:
 
 
 def actions(report: Report, rule: str) -> set[Action]:
-    found = list(report.findings)
-    for rv in report.rewrites:
-        found.extend(rv.overridden)
-    return {f.action for f in found if f.rule == rule}
+    """What ``rule`` asked for, whether its finding counted or an allowed pair set it aside."""
+    set_aside = [f for rv in report.rewrites for f in rv.overridden]
+    return {f.action for f in (*report.findings, *set_aside) if f.rule == rule}
 
 
 # (source, proposal, lang, OSA distance of the changed words, expected real-word action)
