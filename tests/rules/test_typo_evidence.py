@@ -93,3 +93,41 @@ def test_rewrite_density_does_not_count_plain_typo_fixes(
 ) -> None:
     got = actions(base.check(source, proposal, lang="en"), "rewrite-density")
     assert got == (set() if expected is None else {expected})
+
+
+# (rule, source, proposal, lang, expected action).
+# clipped-word: most misspellings are one wrong, missing, extra or swapped letter (Damerau
+# 1964), so a fix that only drops two or more letters at one end is a clip.
+# mentioned-word: quoted single words name commands and values; a word with a period and
+# a lower-case word after it is an abbreviation; French sets a space inside guillemets
+# (all three common practice, no source).
+WORD_CASES = [
+    ("clipped-word", "reindex the table", "index the table", "en", Action.VETO),  # "re" cut
+    ("clipped-word", "no opcode here", "no code here", "en", Action.VETO),  # "op" cut
+    ("clipped-word", "the Druckbereichen list", "the Druckbereich list", "de", Action.VETO),
+    ("clipped-word", "see thhe docs", "see the docs", "en", None),  # one letter: a slip
+    ("clipped-word", "the reindex run", "the reindexed run", "en", None),  # letters added
+    ("clipped-word", "a tolen kept", "a token kept", "en", None),  # same length
+    ("mentioned-word", "run 'mandb' again", "run 'mand' again", "en", Action.VETO),
+    ("mentioned-word", 'dat bijv. "pkcon" werkt', 'dat bijv. "kon" werkt', "nl", Action.VETO),
+    ("mentioned-word", "ou bien « agp » ici", "ou bien « agi » ici", "fr", Action.VETO),
+    ("mentioned-word", "zie bijv. de map", "zie bij. de map", "nl", Action.VETO),
+    ("mentioned-word", "Verr. maj. activé", "Vers. maj. activé", "fr", Action.VETO),
+    # an apostrophe inside a word is no quote mark: "l'optoin" is elided, not quoted
+    ("mentioned-word", "voir l'optoin' ici", "voir l'option' ici", "fr", None),
+    # a period before a capital ends a sentence: "teh" is a word in use
+    ("mentioned-word", "read teh. Then stop", "read the. Then stop", "en", None),
+    ("mentioned-word", "we recieve it", "we receive it", "en", None),
+]
+
+
+@pytest.mark.parametrize(
+    ("rule", "source", "proposal", "lang", "expected"),
+    WORD_CASES,
+    ids=[f"{c[0]}:{c[1]}->{c[2]}" for c in WORD_CASES],
+)
+def test_clipped_and_mentioned_words(
+    base: Guard, rule: str, source: str, proposal: str, lang: str, expected: Action | None
+) -> None:
+    got = actions(base.check(source, proposal, lang=lang), rule)
+    assert got == (set() if expected is None else {expected})
