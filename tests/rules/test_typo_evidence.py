@@ -102,6 +102,12 @@ def test_rewrite_density_does_not_count_plain_typo_fixes(
 # a lower-case word after it is an abbreviation; French sets a space inside guillemets
 # (all three common practice, no source).
 WORD_CASES = [
+    # Capitals of three letters or fewer are acronyms (common practice, no source): "UID"
+    # -> "UND" (German "und" in capitals) is no typo fix, whatever wordfreq says of "und";
+    # four letters may be a word set in capitals, as a usage string's metavariable.
+    ("letter-shape", "Ihre UID passt nicht", "Ihre UND passt nicht", "de", Action.VETO),
+    ("letter-shape", "with a different UID", "with a different DID", "en", Action.VETO),
+    ("letter-shape", "--user UESR only", "--user USER only", "en", None),
     ("clipped-word", "reindex the table", "index the table", "en", Action.VETO),  # "re" cut
     ("clipped-word", "no opcode here", "no code here", "en", Action.VETO),  # "op" cut
     ("clipped-word", "the Druckbereichen list", "the Druckbereich list", "de", Action.VETO),
