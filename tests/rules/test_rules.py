@@ -50,6 +50,10 @@ CASES = [
     ("protected-term", "Hafenstraße 4", "Hafenstrasse 4", "de", None, None),
     ("protected-term", "Hafenstraße 4", "Hafenstrafe 4", "de", None, Action.VETO),
     ("protected-term", "open Quilmate now", "open Quillmate now", "en", None, Action.FLAG),
+    # a typo fixed in another part of a compound leaves the term's characters alone ...
+    ("protected-term", "the Patchg-Quillmate", "the Patch-Quillmate", "en", None, None),
+    # ... but a change right against the term extends or cuts it
+    ("protected-term", "the Quillmate-X", "the Quillmates-X", "en", None, Action.VETO),
     ("protected-pattern", "HM-2207 bilge pmup", "HM-2207 bilge pump", "en", None, None),
     ("protected-term", "open Quilmate now", "open Quillmate now", "en", None, Action.FLAG),
     ("protected-pattern", "order HM-2207 today", "order HM-2270 today", "en", None, Action.VETO),
