@@ -102,6 +102,14 @@ def test_rewrite_density_does_not_count_plain_typo_fixes(
 # a lower-case word after it is an abbreviation; French sets a space inside guillemets
 # (all three common practice, no source).
 WORD_CASES = [
+    # short-token: a dropped letter given back, toward one of the commonest words (wordfreq
+    # Zipf: Spanish "que" 7.5, English "the" 7.7; the base floor is 6.5) is a typo fixed ...
+    ("short-token", "dice qu no", "dice que no", "es", None),
+    ("short-token", "open th file", "open the file", "en", None),
+    # ... a unit that gains a letter is not: German "mal" is common (Zipf 6.3) but below
+    # the floor, and "5 ml" -> "5 my" changes a letter rather than restoring one.
+    ("short-token", "nimm 5 ml davon", "nimm 5 mal davon", "de", Action.VETO),
+    ("short-token", "add 5 ml water", "add 5 my water", "en", Action.VETO),
     # Capitals of three letters or fewer are acronyms (common practice, no source): "UID"
     # -> "UND" (German "und" in capitals) is no typo fix, whatever wordfreq says of "und";
     # four letters may be a word set in capitals, as a usage string's metavariable.
