@@ -102,6 +102,10 @@ def test_rewrite_density_does_not_count_plain_typo_fixes(
 # a lower-case word after it is an abbreviation; French sets a space inside guillemets
 # (all three common practice, no source).
 WORD_CASES = [
+    # critical-word: "nciht" is a frequent web misspelling (wordfreq Zipf 3.2 in German),
+    # "nicht" 7.0, one transposition away: a repair; "now" -> "not" (6.1 -> 6.5) is not.
+    ("critical-word", "das geht nciht", "das geht nicht", "de", None),
+    ("critical-word", "do now stop", "do not stop", "en", Action.VETO),
     # short-token: a dropped letter given back, toward one of the commonest words (wordfreq
     # Zipf: Spanish "que" 7.5, English "the" 7.7; the base floor is 6.5) is a typo fixed ...
     ("short-token", "dice qu no", "dice que no", "es", None),
