@@ -24,21 +24,26 @@ from guard.rules.words import content_tokens
 from guard.ruleset.model import RuleSettings
 
 NAME = "mentioned-word"
-_OPENING = "'\"‘“«‹`„‚"
-_CLOSING = "'\"’”»›`“‘"
-_GUILLEMETS = "«»‹›"  # French typography sets a space inside them
+_OPENING = "'\"‘“«‹»›`„‚"
+_CLOSING = "'\"’”»›«‹`“‘"
 _ABBREVIATION = regex.compile(r"\.[ \t\u00a0]+\p{Ll}")
 
 
 def _quoted(source: str, tok: Token) -> bool:
+    """A quote mark right before the word (French guillemets: a space between allowed) that
+    opens, being at the start or after a space or bracket, and one right after it that
+    closes, no letter or digit following. German quotes »so«, so a closing « that ends
+    one quotation and an opening » that starts the next do not make the word between them
+    quoted ("»%s« für »--process«")."""
     before = source[: tok.start]
     after = source[tok.end :]
     b = before.rstrip(" \u00a0\u202f") if before.rstrip(" \u00a0\u202f")[-1:] == "«" else before
     a = after.lstrip(" \u00a0\u202f") if after.lstrip(" \u00a0\u202f")[:1] == "»" else after
     if not b or not a or b[-1] not in _OPENING or a[0] not in _CLOSING:
         return False
-    # a quote mark that also touches a letter on its other side is an apostrophe ("l'a")
-    return not (b[-1] not in _GUILLEMETS and b[-2:-1].isalnum())
+    opens = len(b) == 1 or b[-2].isspace() or b[-2] in "([{/"
+    closes = len(a) == 1 or not a[1].isalnum()
+    return opens and closes
 
 
 def _abbreviated(source: str, tok: Token) -> bool:

@@ -131,6 +131,9 @@ WORD_CASES = [
     ("mentioned-word", "ou bien « agp » ici", "ou bien « agi » ici", "fr", Action.VETO),
     ("mentioned-word", "zie bijv. de map", "zie bij. de map", "nl", Action.VETO),
     ("mentioned-word", "Verr. maj. activé", "Vers. maj. activé", "fr", Action.VETO),
+    # German quotes »so«: the word between two quotations is not quoted
+    ("mentioned-word", "Wert »%s« frü »--process«", "Wert »%s« für »--process«", "de", None),
+    ("mentioned-word", "Programm »mandb« fehlt", "Programm »mand« fehlt", "de", Action.VETO),
     # an apostrophe inside a word is no quote mark: "l'optoin" is elided, not quoted
     ("mentioned-word", "voir l'optoin' ici", "voir l'option' ici", "fr", None),
     # a period before a capital ends a sentence: "teh" is a word in use
