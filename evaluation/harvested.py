@@ -1,14 +1,15 @@
 """The second accuracy target: the base ruleset plus terms harvested from other texts of
 the same domain.
 
-For each language, the messages of evaluation/sets/<lang>.jsonl after the first ``--cap``
-lines (the ones run.py scores) are a team's "own documents": `guard harvest` reads them,
+For each language, the messages of evaluation/sets/<lang>.jsonl from line ``--first``
+(600: after the tuning part, lines 0-299, and the held-out part, 300-599, that run.py
+scores) are a team's "own documents": `guard harvest` reads them,
 the draft term lists it writes are used as they are (no hand review, so this is the
 floor of what a team gets), and a ruleset extending base protects them. Then run.py
-scores the first ``--cap`` lines with that ruleset:
+scores either part with that ruleset:
 
     python evaluation/harvested.py            # writes evaluation/harvested/ruleset.toml
-    python evaluation/run.py --rules evaluation/harvested/ruleset.toml
+    python evaluation/run.py --rules evaluation/harvested/ruleset.toml [--start 300]
 """
 
 from __future__ import annotations
@@ -30,7 +31,9 @@ CASE = {"acronym": "exact", "code": "exact", "identifier": "exact", "name": "exa
 
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--cap", type=int, default=300, help="lines run.py scores (not harvested)")
+    ap.add_argument(
+        "--first", type=int, default=600, help="first line harvested (run.py scores 0-599)"
+    )
     ap.add_argument("--min-count", type=int, default=1)
     ap.add_argument("--out", type=Path, default=HERE / "harvested")
     args = ap.parse_args()
@@ -46,7 +49,7 @@ def main() -> int:
     ]
     for lang in LANGS:
         lines = (HERE / "sets" / f"{lang}.jsonl").read_text(encoding="utf-8").splitlines()
-        docs = [(d["id"], d["text"]) for d in map(json.loads, lines[args.cap :])]
+        docs = [(d["id"], d["text"]) for d in map(json.loads, lines[args.first :])]
         found = harvest(docs, lang=lang, min_count=args.min_count)
         files = write_drafts(found, out / lang, overwrite=True)
         print(f"{lang}: {len(docs)} messages, {len(found)} candidate terms", file=sys.stderr)

@@ -1,7 +1,7 @@
 """The accuracy target, measured: typos -> each real speller -> guard -> score, per language.
 
 For each language of evaluation/sets/ (real program messages, see sets/PROVENANCE.md)
-this takes the first ``--cap`` lines, injects synthetic typos (guard.evaluate.typos, one
+this takes ``--cap`` lines from line ``--start``, injects synthetic typos (guard.evaluate.typos, one
 seed), runs every speller over them, checks each (source, proposal) pair with the guard
 (bundled base ruleset and default options unless told otherwise) and scores the result
 against the clean line. It prints one table: overcorrections prevented and good
@@ -14,19 +14,23 @@ distance 2 on long unknown words), so proposals are cached in evaluation/proposa
 tuning the ruleset and running again takes seconds. A cold run (no cache) takes much
 longer: pyspellchecker at distance 2 spent about 20 minutes on 300 German lines on a busy
 two-core machine.
+Each set has three parts: lines 0-299 are the tuning part (the default; the base
+ruleset's thresholds were chosen on it), lines 300-599 the held-out part (``--start 300``,
+scored only to report, never to choose a setting), lines 600 on the harvest part.
 With ``--harvest``, each language is also scored with a second ruleset: base plus the
-terms ``guard harvest`` proposes from the lines of the same set that are not evaluated
-(lines after ``--cap``): other text of the same domain, as a team would harvest its own
+terms ``guard harvest`` proposes from the harvest part (``--harvest-from``), which
+neither scored part overlaps: other text of the same domain, as a team would harvest its own
 documents. The draft lists are used as harvested, unreviewed.
 
-The scored records are written to evaluation/scored/<lang>.<speller>.jsonl, so that one
+The scored records are written to evaluation/scored/<lang>.<speller>.jsonl (the held-out
+part to <lang>.<speller>.from300.jsonl), so that one
 pair of language and speller can be examined or swept on its own:
 
     guard score evaluation/scored/de.pyspellchecker.jsonl --sweep rules.real-word.min-zipf=2:4:0.25
 
 Usage:
 
-    python evaluation/run.py [--cap 300] [--seed 1] [--rules base ...] [--jobs 2]
+    python evaluation/run.py [--cap 300] [--start 0|300] [--seed 1] [--rules base ...] [--jobs 2]
                              [--langs en,de,...] [--spellers pyspellchecker,...]
                              [--undo-flagged] [--markdown] [--examples N] [--harvest]
 """
@@ -56,14 +60,23 @@ from guard.evaluate.typos import TypoOptions, typo_records  # noqa: E402
 LANGS = ("en", "de", "fr", "es", "nl")
 SPELLERS = ("pyspellchecker", "pyspellchecker-d1", "symspell-word", "symspell-compound")
 CACHE = HERE / "proposals"
+TUNE = 0
+"""Lines 0-299 of each set: the part the base ruleset's thresholds were tuned on."""
+HELD_OUT = 300
+"""Lines 300-599: the held-out part, scored only to report (``--start 300``)."""
+HARVEST_FROM = 600
+"""Lines 600 on: a team's "own documents" for ``--harvest``, apart from both parts."""
 WORK = HERE / "scored"
 
 
-def load_set(lang: str, cap: int) -> list[CleanText]:
+def load_set(lang: str, cap: int, start: int = 0) -> list[CleanText]:
+    """Lines ``start`` to ``start + cap`` of the language's set."""
     path = HERE / "sets" / f"{lang}.jsonl"
     out: list[CleanText] = []
     with path.open(encoding="utf-8") as fh:
-        for line in fh:
+        for number, line in enumerate(fh):
+            if number < start:
+                continue
             d = json.loads(line)
             out.append(CleanText(text=d["text"], id=d["id"], lang=d["lang"]))
             if len(out) >= cap:
@@ -71,9 +84,12 @@ def load_set(lang: str, cap: int) -> list[CleanText]:
     return out
 
 
-def typo_set(lang: str, cap: int, seed: int) -> list[dict[str, object]]:
+def typo_set(lang: str, cap: int, seed: int, start: int = 0) -> list[dict[str, object]]:
+    """The typo records of lines ``start`` to ``start + cap``: each line's typos depend on
+    the seed and its line number only, so a part gets the typos the whole set would."""
     options = TypoOptions(seed=seed)
-    return list(typo_records(load_set(lang, cap), lang=lang, options=options))
+    texts = load_set(lang, cap, start)
+    return list(typo_records(texts, lang=lang, options=options, start=start))
 
 
 def _cache_path(speller: str, lang: str) -> Path:
@@ -104,13 +120,13 @@ def propose(job: tuple[str, str, list[str]]) -> tuple[str, str, dict[str, str], 
     return speller, lang, {s: cache[_key(s)] for s in sources}, time.perf_counter() - start
 
 
-def harvest_ruleset(lang: str, cap: int) -> Path:
-    """Write a ruleset (base plus the terms harvested from the set's lines after ``cap``)."""
+def harvest_ruleset(lang: str, first: int) -> Path:
+    """Write a ruleset (base plus the terms harvested from the set's lines from ``first``)."""
     from guard.vocab.harvest import harvest, write_drafts
 
     path = HERE / "sets" / f"{lang}.jsonl"
     lines = [json.loads(x) for x in path.read_text(encoding="utf-8").splitlines()]
-    docs = [(str(d["id"]), str(d["text"])) for d in lines[cap:]]
+    docs = [(str(d["id"]), str(d["text"])) for d in lines[first:]]
     folder = WORK / "harvest" / lang
     written = write_drafts(harvest(docs, lang=lang), folder, overwrite=True)
     parts = [
@@ -131,7 +147,7 @@ def harvest_ruleset(lang: str, cap: int) -> Path:
 
 def score_one(
     guard: Guard, lang: str, speller: str, records: list[dict[str, object]],
-    proposals: dict[str, str], undo_flagged: bool, examples: int,
+    proposals: dict[str, str], undo_flagged: bool, examples: int, start: int = 0,
 ) -> Summary:  # fmt: skip
     inputs = [
         ScoreInput(
@@ -144,7 +160,8 @@ def score_one(
         for r in records
     ]
     WORK.mkdir(exist_ok=True)
-    with (WORK / f"{lang}.{speller}.jsonl").open("w", encoding="utf-8") as fh:
+    part = "" if start == 0 else f".from{start}"
+    with (WORK / f"{lang}.{speller}{part}.jsonl").open("w", encoding="utf-8") as fh:
         for r, i in zip(records, inputs, strict=True):
             row = {"id": i.id, "lang": lang, "source": i.source, "proposal": i.proposal,
                    "gold": i.gold, "typos": r.get("typos", [])}  # fmt: skip
@@ -183,6 +200,12 @@ def main(argv: Sequence[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     ap.add_argument("--cap", type=int, default=300, help="lines per language (default 300)")
     ap.add_argument("--seed", type=int, default=1)
+    ap.add_argument(
+        "--start",
+        type=int,
+        default=TUNE,
+        help=f"first line scored ({TUNE}: the tuning part, the default; {HELD_OUT}: held out)",
+    )
     ap.add_argument("--rules", action="append", default=None, help="ruleset (repeatable)")
     ap.add_argument("--langs", default=",".join(LANGS))
     ap.add_argument("--spellers", default=",".join(SPELLERS))
@@ -194,13 +217,19 @@ def main(argv: Sequence[str] | None = None) -> int:
     ap.add_argument(
         "--harvest", action="store_true", help="also score with terms harvested per language"
     )
+    ap.add_argument(
+        "--harvest-from",
+        type=int,
+        default=HARVEST_FROM,
+        help=f"harvest the lines from this one on (default {HARVEST_FROM})",
+    )
     args = ap.parse_args(argv)
     langs = [x for x in args.langs.split(",") if x]
     spellers = [x for x in args.spellers.split(",") if x]
     refs = tuple(args.rules or ["base"])
 
     started = time.perf_counter()
-    sets = {lang: typo_set(lang, args.cap, args.seed) for lang in langs}
+    sets = {lang: typo_set(lang, args.cap, args.seed, args.start) for lang in langs}
     jobs = [(sp, lang, [str(r["source"]) for r in sets[lang]]) for lang in langs for sp in spellers]
     proposals: dict[tuple[str, str], dict[str, str]] = {}
     with ProcessPoolExecutor(max_workers=max(1, args.jobs)) as pool:
@@ -214,19 +243,21 @@ def main(argv: Sequence[str] | None = None) -> int:
         for speller in spellers:
             results[(lang, speller)] = score_one(
                 guard, lang, speller, sets[lang], proposals[(lang, speller)],
-                args.undo_flagged, args.examples,
+                args.undo_flagged, args.examples, args.start,
             )  # fmt: skip
     if args.harvest:
         for lang in langs:
-            harvested = Guard(load_ruleset(*refs, harvest_ruleset(lang, args.cap)))
+            harvested = Guard(load_ruleset(*refs, harvest_ruleset(lang, args.harvest_from)))
             for speller in spellers:
                 results[(lang, f"{speller} +harvest")] = score_one(
                     harvested, lang, speller, sets[lang], proposals[(lang, speller)],
-                    args.undo_flagged, args.examples,
+                    args.undo_flagged, args.examples, args.start,
                 )  # fmt: skip
     flagged = "flagged rewrites undone" if args.undo_flagged else "flagged rewrites kept"
-    print(f"ruleset {' + '.join(refs)}; {flagged}; {args.cap} lines per language, seed "
-          f"{args.seed}; {time.perf_counter() - started:.0f} s")  # fmt: skip
+    part = {TUNE: "tuning part", HELD_OUT: "held-out part"}.get(args.start, "part")
+    print(f"ruleset {' + '.join(refs)}; {flagged}; {part}: lines {args.start} to "
+          f"{args.start + args.cap - 1}, seed {args.seed}; "
+          f"{time.perf_counter() - started:.0f} s")  # fmt: skip
     print(table(results, args.markdown))
     if args.examples:
         for (lang, speller), s in results.items():

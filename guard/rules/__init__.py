@@ -11,6 +11,7 @@ from types import MappingProxyType
 
 from guard.rules import (
     blocked_pair,
+    clipped_word,
     critical_word,
     edit_budget,
     foreign_word,
@@ -18,6 +19,7 @@ from guard.rules import (
     letter_shape,
     literal_token,
     low_confidence,
+    mentioned_word,
     no_lexicon,
     protected_pattern,
     protected_term,
@@ -46,6 +48,8 @@ REGISTRY: Mapping[str, Rule] = MappingProxyType(
             critical_word,
             edit_budget,
             real_word,
+            clipped_word,
+            mentioned_word,
             rarer_target,
             unknown_target,
             foreign_word,

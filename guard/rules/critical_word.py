@@ -5,7 +5,9 @@ A speller that drops "not" or turns "mg" into "mcg" changes what the text says.
 
 A speller that repairs a token no lexicon knows into a critical word ("nto" -> "not") adds
 nothing the writer did not mean; ``allow-typo-fix`` lets that through (rulesets for
-clinical text turn it off).
+clinical text turn it off). Web frequency lists hold frequent misspellings ("nciht" has a
+German Zipf of 3.2), so with ``typo-min-gain`` set, a one-word change within one edit
+toward a critical word at least that much more common counts as a repair too.
 
 Accepts: with "not" critical, "do not recieve" -> "do not receive"; "do nto stop" -> "do not stop".
 Vetoes: with "not" critical, "do not stop" -> "do now stop"; with "mg" critical, "5 mg" -> "5 mcg".
@@ -15,9 +17,11 @@ from __future__ import annotations
 
 from collections import Counter
 
+from rapidfuzz.distance import OSA
+
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import UNKNOWN_BELOW, content_tokens, protected, zipf
+from guard.rules.words import UNKNOWN_BELOW, content_tokens, one_word_change, protected, zipf
 from guard.ruleset.model import RuleSettings
 from guard.text.normalize import normalize_key
 
@@ -73,7 +77,20 @@ def _typo_fix(ctx: PairContext, rw: Rewrite, settings: RuleSettings) -> bool:
         ctx.lexicon is not None
         and bool(old)
         and all(zipf(ctx, t.text) < below and not protected(ctx, t.text) for t in old)
-    )
+    ) or _frequent_misspelling(ctx, rw, settings)
+
+
+def _frequent_misspelling(ctx: PairContext, rw: Rewrite, settings: RuleSettings) -> bool:
+    """One word, one edit, toward a word at least ``typo-min-gain`` Zipf more common."""
+    gain = settings.option("typo-min-gain", ctx.lang)
+    assert isinstance(gain, float)
+    change = one_word_change(rw)
+    if gain <= 0.0 or change is None or ctx.lexicon is None or protected(ctx, change[0]):
+        return False
+    old, new = change
+    if OSA.distance(old.casefold(), new.casefold(), score_cutoff=1) > 1:
+        return False
+    return zipf(ctx, new) - zipf(ctx, old) >= gain
 
 
 RULE = Rule(
@@ -88,6 +105,13 @@ RULE = Rule(
             default=True,
             type=bool,
             doc="let a token no lexicon knows be repaired into a critical word",
+            per_lang=True,
+        ),
+        "typo-min-gain": OptionSpec(
+            default=0.0,
+            type=float,
+            doc="a listed word one edit from a critical word this much more common (Zipf) "
+            "is a frequent misspelling of it (0: never)",
             per_lang=True,
         ),
     },

@@ -4,7 +4,10 @@ capitalised word inside a sentence (a likely name) is flagged (``title-action``)
 Both yield to direction evidence: when no lexicon and no term list knows the source token
 and the speller moves it onto a protected term, or onto a word the lexicon knows that has
 the same letter shape and lies within ``max-fix-distance`` edits, the speller is fixing a
-typo ("HTTTP" -> "HTTP"), not erasing a deliberate token.
+typo ("HTTTP" -> "HTTP"), not erasing a deliberate token. Capitals of at most
+``acronym-max-letters`` letters get that exemption only toward a protected term: so short
+a capitalised token is an acronym ("UID", "LTS"), and one changed letter makes it
+another acronym or a common word in capitals ("UND"), never a fixed typo of one.
 
 Accepts: "HTTTP server" -> "HTTP server"; "teh" -> "the".
 Vetoes: "NASA" -> "Nasa"; "JSON" -> "Jason". Flags: "met Mrs Kowalczyk" -> "met Mrs Kowalski".
@@ -73,6 +76,10 @@ def _is_typo_fix(
         return False
     if domain_known(ctx, new):
         return True
+    acronym = settings.option("acronym-max-letters", ctx.lang)
+    assert isinstance(acronym, int)
+    if shape is Shape.ALLCAPS and sum(c.isalpha() for c in old) <= acronym:
+        return False
     max_fix = settings.option("max-fix-distance", ctx.lang)
     min_target = settings.option("min-target-zipf", ctx.lang)
     assert isinstance(max_fix, int) and isinstance(min_target, float)
@@ -102,6 +109,13 @@ RULE = Rule(
             default=3.0,
             type=float,
             doc="a typo fix must land on a word at least this common",
+            per_lang=True,
+        ),
+        "acronym-max-letters": OptionSpec(
+            default=0,
+            type=int,
+            doc="capitals this short are acronyms: moved onto anything but a protected "
+            "term, they are never a typo fix (0: no such length)",
             per_lang=True,
         ),
         "max-fix-distance": OptionSpec(

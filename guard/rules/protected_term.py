@@ -2,7 +2,10 @@
 
 Terms come from the ruleset's term lists, each with a kind (acronym, code, name, term...)
 and a case policy. For a case-insensitive term, a change of letter case only leaves the
-term intact and is not this rule's business (letter-shape judges it).
+term intact and is not this rule's business (letter-shape judges it). Nor is a rewrite
+that changes only letters apart from the term, with at least one character kept between
+(a typo fixed in another part of a compound: with "Block" protected, "Patchg-Block" ->
+"Patch-Block"): the rewrite's changed characters are what it touches.
 
 A ruleset may also hold for review a rewrite that lands on a term of some kinds from a
 word that is not one (``flag-toward-kinds = ["drug"]``): in clinical text even a right fix
@@ -23,12 +26,29 @@ from guard.text.normalize import normalize_key
 NAME = "protected-term"
 
 
+def _changed_span(rw: Rewrite) -> tuple[int, int]:
+    """Source offsets of the characters the rewrite changes: its span less the longest
+    common prefix and suffix of old and new text (empty for a pure insertion)."""
+    old, new = rw.old, rw.new
+    prefix = 0
+    most = min(len(old), len(new))
+    while prefix < most and old[prefix] == new[prefix]:
+        prefix += 1
+    suffix = 0
+    while suffix < most - prefix and old[-1 - suffix] == new[-1 - suffix]:
+        suffix += 1
+    return rw.start + prefix, rw.end - suffix
+
+
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     for hit in ctx.term_hits:
         inside = rw.start == rw.end and hit.start < rw.start < hit.end  # an insertion
         if (hit.end <= rw.start or hit.start >= rw.end) and not inside:
             continue
+        first, last = _changed_span(rw)
+        if last < hit.start or first > hit.end:
+            continue  # only characters apart from the term change, one kept between
         entry = hit.entry
         if entry.case is CasePolicy.FOLD and normalize_key(rw.old, fold=True) == normalize_key(
             rw.new, fold=True

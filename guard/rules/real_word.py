@@ -5,8 +5,13 @@ correct but rare-to-the-speller word is exactly what a general speller overcorre
 rule objects when the source word's Zipf frequency (wordfreq) is at least ``min-zipf``,
 unless the new word is at least ``min-gain`` Zipf more common: web-derived frequency lists
 hold frequent misspellings too ("teh" has a real Zipf value), and a fix toward a far more
-common word is the speller doing its job. Case- and spacing-only changes are not this
-rule's business; punctuation-only ones are ("doesn’t" -> "doesn't" gains nothing).
+common word is the speller doing its job. That exemption holds only for a fix at most
+``gain-max-distance`` edits away (optimal string alignment over case-folded words): a
+frequent misspelling is one slip from its word ("teh"), while a listed word two edits from
+a commoner one ("udp" -> "up" is one, "sed" -> "se" one, "heap" -> "ha" two) is far more
+often another word the speller does not know than a double typo that happens to land on
+a listed word. Case- and spacing-only changes are not this rule's business;
+punctuation-only ones are ("doesn’t" -> "doesn't" gains nothing).
 
 A split of a word the lexicon knows ("Fehlgeformter" -> "Fehl geformter") is objected to
 as well: a typo does not glue words into one the language already has.
@@ -15,6 +20,8 @@ Accepts: "teh" -> "the" (Zipf gain above min-gain). Vetoes: "kernel" -> "kennel"
 """
 
 from __future__ import annotations
+
+from rapidfuzz.distance import OSA
 
 from guard.records import Action, Finding, Refinement, Rewrite, RewriteKind, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
@@ -35,6 +42,17 @@ def _split_of_known_word(rw: Rewrite, ctx: PairContext, settings: RuleSettings) 
     floor = settings.option("split-min-zipf", ctx.lang)
     assert isinstance(floor, float)
     return z if z >= floor else None
+
+
+def _near(rw: Rewrite, settings: RuleSettings, lang: str) -> bool:
+    """The rewrite is within ``gain-max-distance`` edits (case-folded, optimal string
+    alignment), the reach of a frequent misspelling."""
+    most = settings.option("gain-max-distance", lang)
+    assert isinstance(most, int)
+    if most < 0:
+        return True  # no limit
+    old, new = rw.old.casefold(), rw.new.casefold()
+    return OSA.distance(old, new, score_cutoff=most) <= most
 
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
@@ -65,7 +83,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     if z_old < min_zipf:
         return None
     z_new = phrase_zipf(ctx, rw.new_tokens) if content_tokens(rw.new_tokens) else 0.0
-    if z_new - z_old >= min_gain:
+    if z_new - z_old >= min_gain and _near(rw, settings, ctx.lang):
         return None
     return finding(
         NAME,
@@ -101,6 +119,13 @@ RULE = Rule(
             default=1.5,
             type=float,
             doc="Zipf by which the new word must be more common for the rewrite to pass",
+            per_lang=True,
+        ),
+        "gain-max-distance": OptionSpec(
+            default=-1,
+            type=int,
+            doc="the min-gain exemption holds only for fixes at most this many edits away "
+            "(-1: any distance)",
             per_lang=True,
         ),
         "split-min-zipf": OptionSpec(

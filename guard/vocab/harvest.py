@@ -199,6 +199,10 @@ _WHITESPACE = regex.compile(r"\s+")
 _CAPITALISED = frozenset({Shape.TITLE, Shape.INTERNAL_CAP})
 _UPPER_SHAPES = frozenset({Shape.TITLE, Shape.INTERNAL_CAP, Shape.ALLCAPS})
 _NAME_SHARE = 0.8  # of mid-sentence occurrences capitalised, for a word to count as a name
+NOUNS_CAPITALISED = frozenset({"de"})
+"""Languages that capitalise every noun (German: "Substantive schreibt man groß", the
+official spelling rules, §55, from memory), where a capital inside a sentence is no
+evidence of a name for a word the language's lexicon lists."""
 _HEADING_MIN_WORDS = 3
 _HEADING_SHARE = 0.75
 
@@ -426,6 +430,8 @@ class _Harvester:
             if t.count < min_count:
                 continue
             kind, term = self._classify(t)
+            if kind is Kind.NAME and t.literal_kind is None and self._common_noun(term):
+                kind = Kind.TERM  # keeps its capital: German writes it so
             zipf = self.zipf(term)
             if space != "literal" and zipf > self.o.max_zipf:
                 continue
@@ -452,6 +458,11 @@ class _Harvester:
             )
         out.sort(key=lambda c: (-c.score, -c.count, c.term))
         return out
+
+    def _common_noun(self, word: str) -> bool:
+        """A capitalised word that the lexicon lists, in a language that capitalises
+        every noun: an ordinary noun ("Datei", "Block"), judged as a lowercase term."""
+        return self.o.lang in NOUNS_CAPITALISED and " " not in word and self.zipf(word) > 0.0
 
     @staticmethod
     def _classify(t: _Tally) -> tuple[Kind, str]:

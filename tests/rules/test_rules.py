@@ -50,6 +50,10 @@ CASES = [
     ("protected-term", "Hafenstraße 4", "Hafenstrasse 4", "de", None, None),
     ("protected-term", "Hafenstraße 4", "Hafenstrafe 4", "de", None, Action.VETO),
     ("protected-term", "open Quilmate now", "open Quillmate now", "en", None, Action.FLAG),
+    # a typo fixed in another part of a compound leaves the term's characters alone ...
+    ("protected-term", "the Patchg-Quillmate", "the Patch-Quillmate", "en", None, None),
+    # ... but a change right against the term extends or cuts it
+    ("protected-term", "the Quillmate-X", "the Quillmates-X", "en", None, Action.VETO),
     ("protected-pattern", "HM-2207 bilge pmup", "HM-2207 bilge pump", "en", None, None),
     ("protected-term", "open Quilmate now", "open Quillmate now", "en", None, Action.FLAG),
     ("protected-pattern", "order HM-2207 today", "order HM-2270 today", "en", None, Action.VETO),
@@ -78,6 +82,10 @@ CASES = [
     ("edit-budget", "fill the form", "fill the format", "en", None, Action.FLAG),
     ("real-word", "see teh docs", "see the docs", "en", None, None),
     ("real-word", "load the kernel", "load the kennel", "en", None, Action.VETO),
+    ("clipped-word", "we recieve it", "we receive it", "en", None, None),
+    ("clipped-word", "reindex the table", "index the table", "en", None, Action.VETO),
+    ("mentioned-word", "we recieve it. Then", "we receive it. Then", "en", None, None),
+    ("mentioned-word", "run 'mandb' again", "run 'mand' again", "en", None, Action.VETO),
     ("rarer-target", "we recieve it", "we receive it", "en", None, None),
     ("rarer-target", "clear the cache", "clear the cachet", "en", None, Action.FLAG),
     ("unknown-target", "we recieve it", "we receive it", "en", None, None),

@@ -404,3 +404,23 @@ def test_cli_bad_language(tmp_path: Path, capsys: pytest.CaptureFixture[str]) ->
     assert code == 2
     assert out == ""
     assert "no word frequencies for language 'xx'" in err
+
+
+def test_german_nouns_are_terms_not_names() -> None:
+    # German capitalises every noun (official spelling rules, §55, from memory): "Datei"
+    # and "Verzeichnis" (both listed by wordfreq for German) are capitalised inside every
+    # sentence yet are no names; "Quillmate", which no lexicon lists, still is one. The
+    # same capitalised word in English text is evidence of a name.
+    docs = [
+        ("a", "es fehlt die Datei, die in dem Verzeichnis liegt, und so bricht Quillmate ab"),
+        ("b", "jetzt wird die Datei in das Verzeichnis kopiert, wie Quillmate es verlangt"),
+    ]
+    kinds = {c.term: c.kind.value for c in harvest(docs, lang="de", min_g2=0.0)}
+    assert kinds["Quillmate"] == "name"
+    assert kinds["Datei"] == "term"
+    assert kinds["Verzeichnis"] == "term"
+    english = [
+        ("a", "we open the Datei when the server starts"),
+        ("b", "then you save the Datei before the server stops"),
+    ]
+    assert {c.term: c.kind.value for c in harvest(english, lang="en")}["Datei"] == "name"

@@ -13,6 +13,7 @@ from guard.cli.rules import command
 from guard.errors import RecordError
 from guard.records import Report
 from guard.ruleset import load_ruleset
+from guard.ruleset.bundled import bundled_path
 from guard.ruleset.model import Example
 from guard.vocab.selftest import (
     engine_checker,
@@ -69,20 +70,25 @@ def test_a_failing_example_shows_expected_actual_and_why(failing: Path) -> None:
     assert code == 1
     terms = failing.parent / "terms" / "products.txt"
     allowed = failing.parent / "pairs" / "allowed.txt"
+    base = bundled_path("base")
+    clip_line = base.read_text(encoding="utf-8").splitlines().index("[rules.clipped-word]") + 2
     lines = out.splitlines()
     start = lines.index(
         f"  FAIL  {failing}:37 [examples[2]]  'the quillon seal is worn, replace the vlave'"
         " -> 'the quill seal is worn, replace the valve'"
     )
-    assert lines[start + 1 : start + 6] == [
+    assert lines[start + 1 : start + 7] == [
         "        pair verdict: expected accept, got veto",
         "        rewrite 1 'quillon' -> 'quill': veto (expected accept)",
         "          protected-term (veto): the rewrite changes protected name 'quillon'"
         f" [{terms}:2]",
+        # 'quill' is 'quillon' with 'on' cut off: the base ruleset's clipped-word objects too
+        "          clipped-word (veto): 'quillon' -> 'quill' only cuts 'on' off its end: a"
+        f" clipped word, not a typo fix [{base}:{clip_line} [rules.clipped-word.action]]",
         "        rewrite 2 'vlave' -> 'valve': accept (expected accept)",
         f"          allowed by {allowed}:2",
     ]
-    assert lines[start + 6 :] == [
+    assert lines[start + 7 :] == [
         "        --- expected",
         "        +++ actual",
         "        @@ -1,3 +1,3 @@",
