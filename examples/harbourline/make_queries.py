@@ -6,8 +6,8 @@ keyboard slip, on a word that is not a protected term; a few slips happen to mak
 real word, which word frequencies cannot tell from a deliberate word. About half are
 overcorrections: part numbers, invented brand and model names, units, acronyms, marine
 words, sizes and negations "corrected" into something else. A few are mixed (a good fix
-and a bad one in the same query) and a few leave the query unchanged. Every record carries ``gold``, the
-text the searcher meant, and ``kind``, what the pair demonstrates.
+and a bad one in the same query) and a few leave the query unchanged. Every record
+carries ``gold``, the text the searcher meant, and ``kind``, what the pair demonstrates.
 
 The output depends only on the seed, the lists below, the parts-catalogue term lists and
 the wordfreq data (used to make sure a made-up typo is not itself a word). It is a demo
