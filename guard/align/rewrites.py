@@ -286,19 +286,46 @@ def _realign(
                     if words is not None:
                         d = OSA.normalized_distance(x, words, score_cutoff=_JOIN_CUTOFF)
                         relax(i + 1, j + k, i, j, c + k // 2 * 0.5 + 2 * d, True)
-    path: list[tuple[int, int, int, int]] = []  # changed steps, last first
+    steps: list[tuple[int, int, int, int] | None] = []  # in text order; None: unchanged
     i, j = n, m
     while i or j:
         step = back[i][j]
         assert step is not None  # every cell on the path was reached
         pi, pj, changed = step
-        if changed:
-            if path and path[-1][0] == i and path[-1][2] == j:
-                path[-1] = (pi, path[-1][1], pj, path[-1][3])  # adjacent change: extend
-            else:
-                path.append((pi, i, pj, j))
+        steps.append((pi, i, pj, j) if changed else None)
         i, j = pi, pj
-    return [(i1 + p, i1 + q, j1 + r, j1 + s) for p, q, r, s in reversed(path)]
+    steps.reverse()
+
+    def word_fix(s: tuple[int, int, int, int] | None) -> bool:
+        return (
+            s is not None
+            and s[1] - s[0] == 1
+            and s[3] - s[2] == 1
+            and not a_space[i1 + s[0]]
+            and not b_space[j1 + s[2]]
+        )
+
+    def spacing(s: tuple[int, int, int, int] | None) -> bool:
+        return (
+            s is not None
+            and all(a_space[i1 + s[0] : i1 + s[1]])
+            and all(b_space[j1 + s[2] : j1 + s[3]])
+        )
+
+    path: list[tuple[int, int, int, int]] = []
+    for k, s in enumerate(steps):
+        if s is None:
+            continue
+        p, q, r, t = s
+        # A word fixed, the spacing after it changed, then the next word fixed on its own
+        # ("l'alimengation" -> "l alimentation": the elision broken, a typo fixed) makes
+        # two rewrites, so that the verdict on one does not take the other with it.
+        apart = k >= 2 and word_fix(s) and spacing(steps[k - 1]) and word_fix(steps[k - 2])
+        if path and path[-1][1] == p and path[-1][3] == r and not apart:
+            path[-1] = (path[-1][0], q, path[-1][2], t)  # adjacent change: extend
+        else:
+            path.append((p, q, r, t))
+    return [(i1 + p, i1 + q, j1 + r, j1 + s) for p, q, r, s in path]
 
 
 def _words(tokens: Sequence[str], space: Sequence[bool], i: int, end: int, k: int) -> str | None:

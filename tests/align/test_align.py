@@ -120,6 +120,20 @@ CASES = [
     pytest.param(
         "שלום עולמ", "שלום עולם", [("עולמ", "עולם", R.REPLACE, None)], id="hebrew-final-letter"
     ),
+    # French elision: the article and the noun are two words (common practice, no source),
+    # so breaking the elision and fixing the noun's typo are two rewrites.
+    pytest.param(
+        "régler l'alimengation",
+        "régler l alimentation",
+        [("l'", "l ", R.REPLACE, F.PUNCTUATION), ("alimengation", "alimentation", R.REPLACE, None)],
+        id="elision-broken-then-word-fixed",
+    ),
+    pytest.param(
+        "invalid STDSTRINGS here",
+        "invalid st strings here",
+        [("STDSTRINGS", "st strings", R.REPLACE, None)],
+        id="word-inserted-before-a-fix-stays-one",
+    ),
     pytest.param("", "new text", [("", "new text", R.INSERT, None)], id="from-empty"),
     pytest.param("old text", "", [("old text", "", R.DELETE, None)], id="to-empty"),
 ]
