@@ -6,9 +6,11 @@ not start or end inside a run of letters, digits and combining marks. So the tex
 into *pieces* (a run of letters, digits and marks; any other visible character alone;
 in scripts written without spaces, Han, Kana, Thai and their neighbours, each
 character alone, so that a term is found inside an unspaced run), and a term is a
-sequence of pieces. Matching looks each piece up in a table of first pieces and, where
-a term may start, joins the next pieces (whitespace between them as one space) and looks
-the phrase up in a dict of keys.
+sequence of pieces. Matching looks each piece up in one dict per case policy, which
+holds the keys and the first pieces of longer keys; where a longer term may start, it
+joins the next pieces (whitespace between them as one space) and looks the phrase up in
+the same dict. Text of plain ASCII words is cut by ``str.split``, and when no key has a
+lower-case piece (codes, acronyms, names), lower-case words are not looked up at all.
 
 Why pieces and dicts rather than a character automaton: a term can only start and end
 at piece edges anyway, so nothing is lost; building is a dict insert per term (an
@@ -28,7 +30,9 @@ import re
 import unicodedata
 from array import array
 from bisect import bisect_right
-from collections.abc import Iterable, Iterator, Sequence
+from collections.abc import Iterable, Iterator, Mapping, Sequence
+from itertools import accumulate, chain, compress, filterfalse, repeat
+from operator import not_, or_
 from typing import overload
 
 import regex
@@ -67,17 +71,54 @@ def pieces(text: str) -> list[str]:
     return _PIECE.findall(text)
 
 
-def _first_piece(key: str) -> tuple[str, int]:
-    """(first piece, number of pieces) of a term key."""
-    if key.isascii():
-        if key.isalnum():
-            return key, 1
-        if key.replace(" ", "").isalnum():  # plain words and single spaces (keys have no runs)
-            return key.partition(" ")[0], key.count(" ") + 1
-        found = _ASCII_PIECE.findall(key)
-    else:
-        found = pieces(key)
-    return found[0], len(found)
+def _first_piece(key: str) -> tuple[str, int] | None:
+    """(first piece, number of pieces) of a term key; None when it has no pieces."""
+    found = _ASCII_PIECE.findall(key) if key.isascii() else pieces(key)
+    return (found[0], len(found)) if found else None
+
+
+_ALNUM_RUN = re.compile(r"[A-Za-z0-9]+")
+_LINE_HEAD = re.compile(r"^ *([A-Za-z0-9]+|[^ \n])", re.MULTILINE)
+
+
+def first_pieces(keys: Iterable[str]) -> dict[str, int]:
+    """First piece -> the most pieces a key starting with it has, for keys of two or more
+    pieces (a one-piece key is looked up whole).
+
+    Keys of printable ASCII, most of any list, are cut in bulk: one pass of a regex over
+    them all finds their first pieces, and their piece counts are the lengths of their
+    lines once every run of letters and digits is one character and spaces are gone. The
+    others (other scripts, control characters) are cut one by one.
+
+    >>> keys = ["XR-220", "bilge pump", "Quillmate", "bilge pump room", "東京"]
+    >>> sorted(first_pieces(keys).items())
+    [('XR', 3), ('bilge', 3), ('東', 2)]
+    """
+    ascii_keys: list[str] = []
+    rest: list[str] = []
+    for key in keys:
+        if key.isascii():
+            if not key.isalnum():
+                (ascii_keys if key.isprintable() and key.strip(" ") else rest).append(key)
+        else:
+            rest.append(key)
+    firsts: dict[str, int] = {}
+    if ascii_keys:
+        joined = "\n".join(ascii_keys)
+        heads = _LINE_HEAD.findall(joined)
+        counts = list(map(len, _ALNUM_RUN.sub("a", joined).replace(" ", "").split("\n")))
+        # by count, fewest first, so that a later update leaves the most
+        for count in sorted(set(counts)):
+            if count > 1:
+                firsts.update(zip(compress(heads, map(count.__eq__, counts)), repeat(count)))
+    for key in rest:
+        got = _first_piece(key)
+        if got is None:
+            continue  # blank: no text's pieces can spell it
+        head, count = got
+        if count > 1 and firsts.get(head, 0) < count:
+            firsts[head] = count
+    return firsts
 
 
 def _nfc_with_map(text: str) -> tuple[str, list[int]]:
@@ -104,14 +145,15 @@ class TermTable(Sequence[TermEntry]):
     only ever looks at the few terms it finds. So the loader fills columns (term, key,
     line) and runs of rows that share a list file, kind and case policy; iterating or
     indexing makes entries on the fly (equal, not identical, from one call to the next).
-    Read-only once built.
+    A run may carry its keys' :func:`first_pieces` (the loader's cache keeps them), so
+    that the matcher need not cut a million keys again. Read-only once built.
 
     >>> t = TermTable.of([])
     >>> len(t), list(t)
     (0, [])
     """
 
-    __slots__ = ("_keys", "_lines", "_runs", "_starts", "_terms")
+    __slots__ = ("_heads", "_keys", "_lines", "_runs", "_starts", "_terms")
 
     def __init__(
         self,
@@ -119,14 +161,19 @@ class TermTable(Sequence[TermEntry]):
         keys: list[NormalizedText],
         lines: array[int],
         runs: list[tuple[int, str, str, CasePolicy]],
+        heads: list[Mapping[str, int] | None] | None = None,
     ) -> None:
         if not len(terms) == len(keys) == len(lines):
             raise ValueError("term columns differ in length")
+        if heads is not None and len(heads) != len(runs):
+            raise ValueError("one first-piece table per run, or none")
         self._terms = terms
         self._keys = keys
         self._lines = lines  # 0: no line
         self._runs = runs  # (first row, list file, kind, case), by first row
         self._starts = [r[0] for r in runs]
+        # per run, first_pieces of its keys, or None: the matcher computes them
+        self._heads: list[Mapping[str, int] | None] = heads or [None] * len(runs)
 
     @classmethod
     def of(cls, entries: Iterable[TermEntry]) -> TermTable:
@@ -150,13 +197,15 @@ class TermTable(Sequence[TermEntry]):
         keys: list[NormalizedText] = []
         lines = array("L")
         runs: list[tuple[int, str, str, CasePolicy]] = []
+        heads: list[Mapping[str, int] | None] = []
         for t in tables:
             offset = len(terms)
             runs.extend((start + offset, file, kind, case) for start, file, kind, case in t._runs)
+            heads.extend(t._heads)
             terms.extend(t._terms)
             keys.extend(t._keys)
             lines.extend(t._lines)
-        return cls(terms, keys, lines, runs)
+        return cls(terms, keys, lines, runs, heads)
 
     def __len__(self) -> int:
         return len(self._terms)
@@ -195,19 +244,31 @@ class TermTable(Sequence[TermEntry]):
             origin=Origin(file=file, line=line or None),
         )
 
-    def rows(self) -> Iterator[tuple[int, int, CasePolicy]]:
-        """(first row, end row, case) of each run of rows sharing a list and policy."""
+    def rows(self) -> Iterator[tuple[int, int, CasePolicy, Mapping[str, int] | None]]:
+        """(first row, end row, case, first pieces or None) of each run of rows sharing a
+        list and policy."""
         ends = [*self._starts[1:], len(self)] if self._runs else []
-        for (start, _, _, case), end in zip(self._runs, ends, strict=True):
+        for (start, _, _, case), end, heads in zip(self._runs, ends, self._heads, strict=True):
             if end > start:
-                yield start, end, case
+                yield start, end, case, heads
 
     def keys_of(self, start: int, end: int) -> list[NormalizedText]:
+        if start == 0 and end == len(self._keys):
+            return self._keys
         return self._keys[start:end]
+
+
+_SHIFT = 10  # table values: (row + 1) << shift | the most pieces of a key starting there
+_MEMO_SIZE = 16_384  # entries remembered per matcher (a few MB), for terms found again
 
 
 class TermMatcher:
     """Protected terms of a ruleset, compiled for matching (read-only once built).
+
+    One dict per case policy answers both questions a text's piece asks, in one probe:
+    is it a (one-piece) term, and do longer terms start with it, and with how many pieces
+    at most. A value packs both: ``(row + 1) << shift`` (0: the piece is no term) plus the
+    piece count. Keys of two or more pieces are in the same dict (no piece equals one).
 
     >>> from guard.records import Origin
     >>> e = TermEntry(term="Straße", key=normalize_key("Straße", fold=True), kind="name",
@@ -217,30 +278,60 @@ class TermMatcher:
     [(7, 14)]
     """
 
-    __slots__ = ("_exact", "_exact_first", "_fold", "_fold_first", "_table")
+    __slots__ = ("_count", "_every", "_exact", "_fold", "_memo", "_shift", "_table")
 
     def __init__(self, terms: TermTable | Iterable[TermEntry]) -> None:
         table = terms if isinstance(terms, TermTable) else TermTable.of(terms)
+        runs = list(table.rows())
+        heads_of = [
+            heads if heads is not None else first_pieces(table.keys_of(start, end))
+            for start, end, _, heads in runs
+        ]
+        most = max((max(h.values(), default=0) for h in heads_of), default=0)
+        shift = max(_SHIFT, most.bit_length())
+        step = 1 << shift
         exact: dict[str, int] = {}
         fold: dict[str, int] = {}
-        for start, end, case in table.rows():
+        for start, end, case, _ in runs:
             keys = table.keys_of(start, end)
-            # Later rows first, so that within a run the first listing wins; earlier runs
-            # win over later ones through the merge order. Lint reports the repeats.
-            run: dict[str, int] = dict(
-                zip(reversed(keys), range(end - 1, start - 1, -1), strict=True)
-            )
+            rows = range((start + 1) << shift, (end + 1) << shift, step)
+            run: dict[str, int] = dict(zip(keys, rows, strict=True))
+            if len(run) < len(keys):  # a key listed twice: the run's first listing wins
+                run = dict(zip(reversed(keys), reversed(rows), strict=True))
             run.pop("", None)
+            # Earlier runs win over later ones (lint reports the repeats).
             if case is CasePolicy.FOLD:
-                fold = run | fold
+                fold = run | fold if fold else run
             else:
-                exact = run | exact
+                exact = run | exact if exact else run
+        self._count = len(exact) + len(fold)
+        for case, into in ((CasePolicy.EXACT, exact), (CasePolicy.FOLD, fold)):
+            heads = _most(h for (_, _, c, _), h in zip(runs, heads_of, strict=True) if c is case)
+            # a head's count goes in the low bits, which are 0 in every value so far
+            olds = map(into.get, heads, repeat(0))
+            into.update(zip(heads, map(or_, olds, heads.values()), strict=True))
         self._table = table
-        self._exact, self._exact_first = exact, _firsts(exact)
-        self._fold, self._fold_first = fold, _firsts(fold)
+        self._exact, self._fold, self._shift = exact, fold, shift
+        # Exact-case lists (codes, acronyms, names) rarely hold a piece in lower case only.
+        # When none does, a text's lower-case pieces cannot be in the table (a piece equal
+        # to a key is lower case exactly when the key is) and are never looked up: most
+        # words of most texts.
+        self._every = (any(map(str.islower, exact)), any(map(str.islower, fold)))
+        # Entries of rows found lately: a check finds the same terms again and again.
+        # Bounded; any thread may clear it, none may need it.
+        self._memo: dict[int, TermEntry] = {}
 
     def __len__(self) -> int:
-        return len(self._exact) + len(self._fold)
+        return self._count
+
+    def _entry(self, row: int) -> TermEntry:
+        got = self._memo.get(row)
+        if got is None:
+            got = self._table.entry(row)
+            if len(self._memo) >= _MEMO_SIZE:
+                self._memo.clear()
+            self._memo[row] = got
+        return got
 
     def lookup(self, text: str) -> TermEntry | None:
         """The term ``text`` (a token or phrase) is exactly, after NFC and, for fold terms,
@@ -252,13 +343,19 @@ class TermMatcher:
         >>> TermMatcher([e]).lookup("XR-220") == e, TermMatcher([e]).lookup("xr-220")
         (True, None)
         """
-        spaced = collapse_spaces(text)
-        row: int | None = None
+        if text.isascii() and text.isalnum():  # one ASCII word: its own key, no spaces
+            exact_key, fold_key = text, text
+        else:
+            spaced = collapse_spaces(text)
+            exact_key, fold_key = normalize_key(spaced, fold=False), spaced
+        row = 0
         if self._exact:
-            row = self._exact.get(normalize_key(spaced, fold=False))
-        if row is None and self._fold:
-            row = self._fold.get(normalize_key(spaced, fold=True))
-        return None if row is None else self._table.entry(row)
+            row = self._exact.get(exact_key, 0) >> self._shift
+        if not row and self._fold:
+            ascii = fold_key.isascii()
+            fold_key = fold_key.lower() if ascii else normalize_key(fold_key, fold=True)
+            row = self._fold.get(fold_key, 0) >> self._shift
+        return self._entry(row - 1) if row else None
 
     def find(self, text: str) -> tuple[TermHit, ...]:
         """Every term in ``text`` on word boundaries, as offsets into ``text``, by start.
@@ -267,78 +364,160 @@ class TermMatcher:
         """
         if not text or not (self._exact or self._fold):
             return ()
+        found: list[tuple[int, int, int, int]]
+        if text.isascii():
+            squeezed = text.replace(" ", "")
+            if squeezed.isalnum():
+                found = self._find_words(text, squeezed.isalpha() and squeezed.islower())
+            else:
+                found = self._find_pieces(text)
+        else:
+            found = self._find_pieces(text)
+        if not found:
+            return ()
+        entry = self._entry
+        if len(found) == 1:
+            s, e, _, row = found[0]
+            return (TermHit(start=s, end=e, entry=entry(row)),)
+        return tuple(
+            TermHit(start=s, end=e, entry=entry(row)) for s, e, row in _longest_first(found)
+        )
+
+    def _find_words(self, text: str, lower: bool) -> list[tuple[int, int, int, int]]:
+        """Hits in ASCII letters, digits and spaces: the words between spaces are the
+        pieces, and the cheapest cut is str.split. ``lower``: all the letters are lower
+        case and there are no digits, so every word is lower case."""
+        exact, fold, shift = self._exact, self._fold, self._shift
+        every_exact, every_fold = self._every
+        found: list[tuple[int, int, int, int]] = []
+        words: list[str] = []
+        if exact and (every_exact or not lower):
+            words = text.split()
+            _scan(words, None, exact, shift, 0, found, every_exact)
+        if fold and (every_fold or not lower):
+            folded = text if lower else text.lower()  # ASCII: casefold, one letter for one
+            _scan(folded.split(), None, fold, shift, 1, found, every_fold)
+        if not found:
+            return found
+        words = words or text.split()
+        if text[0] != " " != text[-1] and "  " not in text:  # one space between words
+            out: list[tuple[int, int, int, int]] = []
+            for i, j, rank, row in found:
+                start = sum(map(len, words[:i])) + i
+                out.append((start, start + sum(map(len, words[i : j + 1])) + j - i, rank, row))
+            return out
+        edges = _edges(_ASCII_GAP_PIECE, text)
+        return [(edges[2 * i], edges[2 * j + 1], rank, row) for i, j, rank, row in found]
+
+    def _find_pieces(self, text: str) -> list[tuple[int, int, int, int]]:
+        """Hits in any other text: cut by the regex, composed to NFC first if need be."""
+        exact, fold, shift = self._exact, self._fold, self._shift
+        every_exact, every_fold = self._every
         origin: list[int] | None = None
         view = text
         cut: re.Pattern[str] | regex.Pattern[str] = _ASCII_PIECE
+        layout: re.Pattern[str] | regex.Pattern[str] = _ASCII_GAP_PIECE
         if not text.isascii():
-            cut = _PIECE
+            cut, layout = _PIECE, _GAP_PIECE
             if not unicodedata.is_normalized("NFC", text):
                 view, origin = _nfc_with_map(text)
-        spans: list[tuple[int, int]] | None = None
+        words = cut.findall(view)
         found: list[tuple[int, int, int, int]] = []
-        for rank, keys, firsts in (
-            (0, self._exact, self._exact_first),
-            (1, self._fold, self._fold_first),
+        edges: list[int] | None = None
+        if exact and not exact.keys().isdisjoint(
+            words if every_exact else filterfalse(str.islower, words)
         ):
-            if not keys:
-                continue
-            if rank == 0:
-                words = cut.findall(view)
+            edges = _edges(layout, view)
+            _scan(words, edges, exact, shift, 0, found, every_exact)
+        if fold:
+            folded = view.casefold()
+            if len(folded) == len(view):  # one character for one: the same cut
+                words = cut.findall(folded)
             else:
-                folded = view.casefold()
-                if len(folded) == len(view):  # one character for one: the same cut
-                    words = cut.findall(folded)
-                else:
-                    spans = spans or [m.span() for m in cut.finditer(view)]
-                    words = [view[s:e].casefold() for s, e in spans]
-            if firsts.keys().isdisjoint(words):
-                continue  # most texts: no piece can start a term
-            spans = spans or [m.span() for m in cut.finditer(view)]
-            _scan(words, spans, firsts, keys, rank, found)
-        if not found:
-            return ()
-        if origin is not None:
-            found = [(origin[s], origin[e], rank, row) for s, e, rank, row in found]
-        return tuple(
-            TermHit(start=s, end=e, entry=self._table.entry(row))
-            for s, e, row in _longest_first(found)
-        )
+                edges = edges or _edges(layout, view)
+                words = [view[edges[k] : edges[k + 1]].casefold() for k in range(0, len(edges), 2)]
+            if not fold.keys().isdisjoint(words if every_fold else filterfalse(str.islower, words)):
+                edges = edges or _edges(layout, view)
+                _scan(words, edges, fold, shift, 1, found, every_fold)
+        if not found or edges is None:
+            return []
+        if origin is None:
+            return [(edges[2 * i], edges[2 * j + 1], rank, row) for i, j, rank, row in found]
+        return [
+            (origin[edges[2 * i]], origin[edges[2 * j + 1]], rank, row)
+            for i, j, rank, row in found
+        ]
 
 
-def _firsts(keys: dict[str, int]) -> dict[str, int]:
-    """First piece -> the most pieces a term starting with it has.
+_PLUS_ONE = (1).__add__
+# A piece and the white space before it: a text's matches tile it up to its last piece.
+_ASCII_GAP_PIECE = re.compile(r"([ \t\n\r\x0b\x0c]*)([A-Za-z0-9]+|[^ \t\n\r\x0b\x0c])")
+_GAP_PIECE = regex.compile(rf"(\s*)({_PIECE.pattern})", regex.V1)
 
-    Most keys are one plain ASCII word, their own first piece: they are taken in bulk,
-    and only the others (spaces, punctuation, other scripts) are cut into pieces.
+
+def _edges(layout: re.Pattern[str] | regex.Pattern[str], text: str) -> list[int]:
+    """Where each piece of ``text`` starts and ends: ``[start0, end0, start1, end1...]``.
+
+    ``layout`` matches a piece with the white space before it, so the matches tile the
+    text and the running sum of their parts' lengths gives the edges, all in C.
     """
-    firsts: dict[str, int] = dict.fromkeys(filter(str.isalnum, filter(str.isascii, keys)), 1)
-    for key in keys.keys() - firsts.keys():
-        head, count = _first_piece(key)
-        if firsts.get(head, 0) < count:
-            firsts[head] = count
-    return firsts
+    parts = chain.from_iterable(layout.findall(text))
+    return list(accumulate(map(len, parts)))
+
+
+def _most(tables: Iterable[Mapping[str, int]]) -> Mapping[str, int]:
+    """The tables as one, keeping the largest count of each key."""
+    out: Mapping[str, int] = {}
+    for i, table in enumerate(tables):
+        if i == 0:
+            out = table
+            continue
+        merged = dict(out)
+        for key, count in table.items():
+            if merged.get(key, 0) < count:
+                merged[key] = count
+        out = merged
+    return out
 
 
 def _scan(
     words: list[str],
-    spans: list[tuple[int, int]],
-    firsts: dict[str, int],
-    keys: dict[str, int],
+    edges: list[int] | None,
+    table: dict[str, int],
+    shift: int,
     rank: int,
     out: list[tuple[int, int, int, int]],
+    every: bool,
 ) -> None:
+    """(first piece, last piece, rank, row) of every term among ``words`` into ``out``.
+
+    Only pieces that may be in the table are looked at (``every`` False: no lower-case
+    one is). A phrase joins the pieces after its first with a space where white space
+    parts them in the text (``edges``; None: there always is).
+    """
     n = len(words)
-    for i, word in enumerate(words):
-        most = firsts.get(word)
-        if most is None:
+    get = table.get
+    if every:
+        values = list(map(get, words))
+        at: Iterable[int] = compress(range(n), values)
+    else:
+        values = []
+        at = compress(range(n), map(not_, map(str.islower, words)))
+    mask = (1 << shift) - 1
+    for i in at:
+        value = values[i] if every else get(words[i])
+        if value is None:
             continue
-        phrase = word
-        for j in range(i, min(n, i + most)):
-            if j > i:
-                phrase += (" " if spans[j][0] > spans[j - 1][1] else "") + words[j]
-            row = keys.get(phrase)
-            if row is not None:
-                out.append((spans[i][0], spans[j][1], rank, row))
+        if value >> shift:
+            out.append((i, i, rank, (value >> shift) - 1))
+        phrase = words[i]
+        for j in range(i + 1, min(n, i + (value & mask))):
+            if edges is None or edges[2 * j] > edges[2 * j - 1]:
+                phrase += " "
+            phrase += words[j]
+            row = get(phrase, 0) >> shift
+            if row:
+                out.append((i, j, rank, row - 1))
 
 
 def _longest_first(found: list[tuple[int, int, int, int]]) -> list[tuple[int, int, int]]:

@@ -10,6 +10,7 @@ import pytest
 from guard.errors import RulesetError
 from guard.rules.base import Rule
 from guard.ruleset.load import load_sources
+from guard.ruleset.terms import TermMatcher
 
 Write = Callable[[dict[str, str | bytes]], Path]
 
@@ -39,6 +40,12 @@ def test_a_large_list_is_cached_and_reads_back_the_same(
     assert (entry.term, entry.key, entry.origin.line) == ("İstanbul1", "i̇stanbul1", 3)
     uncached = load_sources([root / "r"], registry=registry, use_cache=False)
     assert list(uncached.terms) == list(first.terms)
+    # the first pieces kept with the list find what the uncached list finds
+    text = "bilge pump3 and C#4, İSTANBUL1 STRASSE6 bilge  pump9 bilge pump7"
+    found = TermMatcher(again.terms).find(text)
+    assert found == TermMatcher(uncached.terms).find(text)
+    expected = ["bilge pump3", "C#4", "İSTANBUL1", "STRASSE6", "bilge  pump9"]  # 7: blank
+    assert [text[h.start : h.end] for h in found] == expected
     # a changed cache file is not trusted: the list is parsed again and the file rewritten
     cached.write_bytes(cached.read_bytes()[:-3] + b"zzz")
     assert list(load_sources([root / "r"], registry=registry).terms) == list(first.terms)
