@@ -30,10 +30,10 @@ import re
 import unicodedata
 from array import array
 from bisect import bisect_right
-from collections.abc import Iterable, Iterator, Mapping, Sequence
-from itertools import accumulate, chain, compress, filterfalse, repeat
+from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
+from itertools import compress, islice, repeat
 from operator import not_, or_
-from typing import overload
+from typing import cast, overload
 
 import regex
 
@@ -278,7 +278,17 @@ class TermMatcher:
     [(7, 14)]
     """
 
-    __slots__ = ("_count", "_every", "_exact", "_fold", "_memo", "_shift", "_table")
+    __slots__ = (
+        "_count",
+        "_every",
+        "_exact",
+        "_fold",
+        "_lower",
+        "_memo",
+        "_shift",
+        "_table",
+        "_tables",
+    )
 
     def __init__(self, terms: TermTable | Iterable[TermEntry]) -> None:
         table = terms if isinstance(terms, TermTable) else TermTable.of(terms)
@@ -317,6 +327,13 @@ class TermMatcher:
         # to a key is lower case exactly when the key is) and are never looked up: most
         # words of most texts.
         self._every = (any(map(str.islower, exact)), any(map(str.islower, fold)))
+        self._lower = (self._every[0] and bool(exact)) or (self._every[1] and bool(fold))
+        # (table, rank, every) of the tables with keys, exact first
+        self._tables = [
+            (t, rank, every)
+            for t, rank, every in ((exact, 0, self._every[0]), (fold, 1, self._every[1]))
+            if t
+        ]
         # Entries of rows found lately: a check finds the same terms again and again.
         # Bounded; any thread may clear it, none may need it.
         self._memo: dict[int, TermEntry] = {}
@@ -362,52 +379,82 @@ class TermMatcher:
 
         Where hits overlap, the longest is kept (on a tie the earlier, then the exact).
         """
-        if not text or not (self._exact or self._fold):
+        if not text or not self._tables:
             return ()
-        found: list[tuple[int, int, int, int]]
-        if text.isascii():
+        if text.isascii() and text.isprintable() and "  " not in text:
             squeezed = text.replace(" ", "")
-            if squeezed.isalnum():
-                found = self._find_words(text, squeezed.isalpha() and squeezed.islower())
-            else:
-                found = self._find_pieces(text)
-        else:
-            found = self._find_pieces(text)
+            if squeezed.isalnum():  # words between single spaces: the words are the pieces
+                lower = squeezed.isalpha() and squeezed.islower()
+                if lower and not self._lower:
+                    return ()  # lower-case words only, and no key has a lower-case piece
+                return self._find_simple(text, text.split(), None, lower)
+            spaced = _SPACED_PIECE.findall(text)
+            return self._find_simple(text, list(map(str.lstrip, spaced)), spaced, False)
+        return self._hits(self._find_pieces(text))
+
+    def _hits(self, found: list[tuple[int, int, int, int]]) -> tuple[TermHit, ...]:
+        """The hits kept of (start, end, rank, row) found, as records."""
         if not found:
             return ()
-        entry = self._entry
         if len(found) == 1:
             s, e, _, row = found[0]
-            return (TermHit(start=s, end=e, entry=entry(row)),)
+            return (TermHit(start=s, end=e, entry=self._memo.get(row) or self._entry(row)),)
         return tuple(
-            TermHit(start=s, end=e, entry=entry(row)) for s, e, row in _longest_first(found)
+            TermHit(start=s, end=e, entry=self._entry(row)) for s, e, row in _longest_first(found)
         )
 
-    def _find_words(self, text: str, lower: bool) -> list[tuple[int, int, int, int]]:
-        """Hits in ASCII letters, digits and spaces: the words between spaces are the
-        pieces, and the cheapest cut is str.split. ``lower``: all the letters are lower
-        case and there are no digits, so every word is lower case."""
-        exact, fold, shift = self._exact, self._fold, self._shift
-        every_exact, every_fold = self._every
+    def _find_simple(
+        self, text: str, words: list[str], spaced: list[str] | None, lower: bool
+    ) -> tuple[TermHit, ...]:
+        """Hits in printable ASCII with no run of spaces, the commonest text, cut without
+        offsets: ``spaced`` holds each piece with the space before it, if any (None: one
+        space before every piece but the first), which is how keys spell it, and the
+        offsets of a hit are sums of lengths. ``lower``: every piece is in lower case.
+
+        Only the pieces a table may hold are looked up, all in C; Python steps through
+        the pieces found only."""
+        shift = self._shift
+        mask = (1 << shift) - 1
         found: list[tuple[int, int, int, int]] = []
-        words: list[str] = []
-        if exact and (every_exact or not lower):
-            words = text.split()
-            _scan(words, None, exact, shift, 0, found, every_exact)
-        if fold and (every_fold or not lower):
-            folded = text if lower else text.lower()  # ASCII: casefold, one letter for one
-            _scan(folded.split(), None, fold, shift, 1, found, every_fold)
+        for table, rank, every in self._tables:
+            if lower and not every:
+                continue
+            if rank and not lower:  # ASCII: lower is casefold, and the cut stays the same
+                words = list(map(str.lower, words))
+                spaced = None if spaced is None else list(map(str.lower, spaced))
+            get = table.get
+            if every:
+                values = list(map(get, words))
+                at: Iterable[int] = range(len(words))
+            else:  # the pieces not in lower case only
+                keep = list(map(not_, map(str.islower, words)))
+                values = list(map(get, compress(words, keep)))
+                at = compress(range(len(words)), keep)
+            # compress drops the pieces the table does not hold (value None)
+            hits = cast(Iterator[tuple[int, int]], compress(zip(at, values, strict=True), values))
+            for i, value in hits:
+                if value >> shift:
+                    found.append((i, i, rank, (value >> shift) - 1))
+                if value & mask > 1:
+                    phrase = words[i]
+                    for j in range(i + 1, min(len(words), i + (value & mask))):
+                        phrase += " " + words[j] if spaced is None else spaced[j]
+                        row = get(phrase, 0) >> shift
+                        if row:
+                            found.append((i, j, rank, row - 1))
         if not found:
-            return found
-        words = words or text.split()
-        if text[0] != " " != text[-1] and "  " not in text:  # one space between words
-            out: list[tuple[int, int, int, int]] = []
-            for i, j, rank, row in found:
-                start = sum(map(len, words[:i])) + i
-                out.append((start, start + sum(map(len, words[i : j + 1])) + j - i, rank, row))
-            return out
-        edges = _edges(_ASCII_GAP_PIECE, text)
-        return [(edges[2 * i], edges[2 * j + 1], rank, row) for i, j, rank, row in found]
+            return ()
+        if spaced is None:
+            lead = 1 if text[0] == " " else 0
+            for k, (i, j, rank, row) in enumerate(found):
+                end = sum(map(len, words[: j + 1])) + j + lead
+                found[k] = (end - len(" ".join(words[i : j + 1])), end, rank, row)
+        else:
+            for k, (i, j, rank, row) in enumerate(found):
+                end = sum(map(len, spaced[: j + 1]))
+                start = end - len(words[i]) - sum(map(len, spaced[i + 1 : j + 1]))
+                found[k] = (start, end, rank, row)
+        return self._hits(found)
 
     def _find_pieces(self, text: str) -> list[tuple[int, int, int, int]]:
         """Hits in any other text: cut by the regex, composed to NFC first if need be."""
@@ -416,53 +463,53 @@ class TermMatcher:
         origin: list[int] | None = None
         view = text
         cut: re.Pattern[str] | regex.Pattern[str] = _ASCII_PIECE
-        layout: re.Pattern[str] | regex.Pattern[str] = _ASCII_GAP_PIECE
         if not text.isascii():
-            cut, layout = _PIECE, _GAP_PIECE
+            cut = _PIECE
             if not unicodedata.is_normalized("NFC", text):
                 view, origin = _nfc_with_map(text)
         words = cut.findall(view)
+        where = _Spans(cut, view)
         found: list[tuple[int, int, int, int]] = []
-        edges: list[int] | None = None
-        if exact and not exact.keys().isdisjoint(
-            words if every_exact else filterfalse(str.islower, words)
-        ):
-            edges = _edges(layout, view)
-            _scan(words, edges, exact, shift, 0, found, every_exact)
+        if exact:
+            _scan(words, where, exact, shift, 0, found, every_exact)
         if fold:
             folded = view.casefold()
             if len(folded) == len(view):  # one character for one: the same cut
                 words = cut.findall(folded)
             else:
-                edges = edges or _edges(layout, view)
-                words = [view[edges[k] : edges[k + 1]].casefold() for k in range(0, len(edges), 2)]
-            if not fold.keys().isdisjoint(words if every_fold else filterfalse(str.islower, words)):
-                edges = edges or _edges(layout, view)
-                _scan(words, edges, fold, shift, 1, found, every_fold)
-        if not found or edges is None:
-            return []
+                words = [view[s:e].casefold() for s, e in map(where, range(len(words)))]
+            _scan(words, where, fold, shift, 1, found, every_fold)
         if origin is None:
-            return [(edges[2 * i], edges[2 * j + 1], rank, row) for i, j, rank, row in found]
-        return [
-            (origin[edges[2 * i]], origin[edges[2 * j + 1]], rank, row)
-            for i, j, rank, row in found
-        ]
+            return [(where(i)[0], where(j)[1], rank, row) for i, j, rank, row in found]
+        return [(origin[where(i)[0]], origin[where(j)[1]], rank, row) for i, j, rank, row in found]
 
 
-_PLUS_ONE = (1).__add__
-# A piece and the white space before it: a text's matches tile it up to its last piece.
-_ASCII_GAP_PIECE = re.compile(r"([ \t\n\r\x0b\x0c]*)([A-Za-z0-9]+|[^ \t\n\r\x0b\x0c])")
-_GAP_PIECE = regex.compile(rf"(\s*)({_PIECE.pattern})", regex.V1)
+# A piece of printable ASCII with the one space before it, if any (runs of spaces excluded)
+_SPACED_PIECE = re.compile(r" ?(?:[A-Za-z0-9]+|[^ ])")
 
 
-def _edges(layout: re.Pattern[str] | regex.Pattern[str], text: str) -> list[int]:
-    """Where each piece of ``text`` starts and ends: ``[start0, end0, start1, end1...]``.
+class _Spans:
+    """Where the pieces of a text are, found on demand: a text is cut into pieces (cheap,
+    in C) but only the few pieces around a term need their offsets. Call with a piece's
+    index for its (start, end); asking in increasing order reads the text once."""
 
-    ``layout`` matches a piece with the white space before it, so the matches tile the
-    text and the running sum of their parts' lengths gives the edges, all in C.
-    """
-    parts = chain.from_iterable(layout.findall(text))
-    return list(accumulate(map(len, parts)))
+    __slots__ = ("_cut", "_it", "_known", "_next", "_text")
+
+    def __init__(self, cut: re.Pattern[str] | regex.Pattern[str], text: str) -> None:
+        self._cut, self._text = cut, text
+        self._it: Iterator[re.Match[str] | regex.Match[str]] | None = None
+        self._next = 0  # the index of the piece self._it gives next
+        self._known: dict[int, tuple[int, int]] = {}
+
+    def __call__(self, index: int) -> tuple[int, int]:
+        got = self._known.get(index)
+        if got is None:
+            if self._it is None or index < self._next:
+                self._it, self._next = self._cut.finditer(self._text), 0
+            match = next(islice(self._it, index - self._next, None))
+            self._next = index + 1
+            got = self._known[index] = match.span()
+        return got
 
 
 def _most(tables: Iterable[Mapping[str, int]]) -> Mapping[str, int]:
@@ -482,7 +529,7 @@ def _most(tables: Iterable[Mapping[str, int]]) -> Mapping[str, int]:
 
 def _scan(
     words: list[str],
-    edges: list[int] | None,
+    where: Callable[[int], tuple[int, int]] | None,
     table: dict[str, int],
     shift: int,
     rank: int,
@@ -493,7 +540,7 @@ def _scan(
 
     Only pieces that may be in the table are looked at (``every`` False: no lower-case
     one is). A phrase joins the pieces after its first with a space where white space
-    parts them in the text (``edges``; None: there always is).
+    parts them in the text (``where`` gives the pieces' offsets; None: there always is).
     """
     n = len(words)
     get = table.get
@@ -512,7 +559,7 @@ def _scan(
             out.append((i, i, rank, (value >> shift) - 1))
         phrase = words[i]
         for j in range(i + 1, min(n, i + (value & mask))):
-            if edges is None or edges[2 * j] > edges[2 * j - 1]:
+            if where is None or where(j)[0] > where(j - 1)[1]:
                 phrase += " "
             phrase += words[j]
             row = get(phrase, 0) >> shift
