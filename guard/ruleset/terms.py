@@ -38,6 +38,7 @@ from typing import cast, overload
 import regex
 
 from guard.records import Origin
+from guard.ruleset.memo import Memo
 from guard.ruleset.model import CasePolicy, TermEntry, TermHit
 from guard.text.normalize import NormalizedText, normalize_key
 
@@ -280,15 +281,20 @@ class TermMatcher:
 
     __slots__ = (
         "_count",
+        "_entries",
         "_every",
         "_exact",
         "_fold",
         "_lower",
-        "_memo",
         "_shift",
         "_table",
         "_tables",
+        "lookup",
     )
+
+    lookup: Callable[[str], TermEntry | None]
+    """The term a token or phrase is exactly (see ``_lookup``): rules ask it of every
+    rewrite's old and new text, so it is a dict lookup in C for text asked lately."""
 
     def __init__(self, terms: TermTable | Iterable[TermEntry]) -> None:
         table = terms if isinstance(terms, TermTable) else TermTable.of(terms)
@@ -335,29 +341,20 @@ class TermMatcher:
             if t
         ]
         # Entries of rows found lately: a check finds the same terms again and again.
-        # Bounded; any thread may clear it, none may need it.
-        self._memo: dict[int, TermEntry] = {}
+        self._entries = Memo(table.entry, _MEMO_SIZE)
+        self.lookup = Memo(self._lookup, _MEMO_SIZE).__getitem__
 
     def __len__(self) -> int:
         return self._count
 
-    def _entry(self, row: int) -> TermEntry:
-        got = self._memo.get(row)
-        if got is None:
-            got = self._table.entry(row)
-            if len(self._memo) >= _MEMO_SIZE:
-                self._memo.clear()
-            self._memo[row] = got
-        return got
-
-    def lookup(self, text: str) -> TermEntry | None:
+    def _lookup(self, text: str) -> TermEntry | None:
         """The term ``text`` (a token or phrase) is exactly, after NFC and, for fold terms,
-        case folding; None if it is none.
+        case folding; None if it is none. (``lookup`` answers the same from a memo.)
 
         >>> from guard.records import Origin
         >>> e = TermEntry(term="XR-220", key=normalize_key("XR-220", fold=False), kind="code",
         ...     case=CasePolicy.EXACT, origin=Origin(file="t.txt", line=3))
-        >>> TermMatcher([e]).lookup("XR-220") == e, TermMatcher([e]).lookup("xr-220")
+        >>> TermMatcher([e])._lookup("XR-220") == e, TermMatcher([e]).lookup("xr-220")
         (True, None)
         """
         if text.isascii() and text.isalnum():  # one ASCII word: its own key, no spaces
@@ -372,7 +369,7 @@ class TermMatcher:
             ascii = fold_key.isascii()
             fold_key = fold_key.lower() if ascii else normalize_key(fold_key, fold=True)
             row = self._fold.get(fold_key, 0) >> self._shift
-        return self._entry(row - 1) if row else None
+        return self._entries[row - 1] if row else None
 
     def find(self, text: str) -> tuple[TermHit, ...]:
         """Every term in ``text`` on word boundaries, as offsets into ``text``, by start.
@@ -398,9 +395,9 @@ class TermMatcher:
             return ()
         if len(found) == 1:
             s, e, _, row = found[0]
-            return (TermHit(start=s, end=e, entry=self._memo.get(row) or self._entry(row)),)
+            return (TermHit(start=s, end=e, entry=self._entries[row]),)
         return tuple(
-            TermHit(start=s, end=e, entry=self._entry(row)) for s, e, row in _longest_first(found)
+            TermHit(start=s, end=e, entry=self._entries[row]) for s, e, row in _longest_first(found)
         )
 
     def _find_simple(
