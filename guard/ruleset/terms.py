@@ -33,7 +33,7 @@ from bisect import bisect_right
 from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
 from itertools import compress, islice, repeat
 from operator import not_, or_
-from typing import cast, overload
+from typing import overload
 
 import regex
 
@@ -408,8 +408,7 @@ class TermMatcher:
         space before every piece but the first), which is how keys spell it, and the
         offsets of a hit are sums of lengths. ``lower``: every piece is in lower case.
 
-        Only the pieces a table may hold are looked up, all in C; Python steps through
-        the pieces found only."""
+        Only the pieces a table may hold are looked up."""
         shift = self._shift
         mask = (1 << shift) - 1
         found: list[tuple[int, int, int, int]] = []
@@ -420,21 +419,18 @@ class TermMatcher:
                 words = list(map(str.lower, words))
                 spaced = None if spaced is None else list(map(str.lower, spaced))
             get = table.get
-            if every:
-                values = list(map(get, words))
-                at: Iterable[int] = range(len(words))
-            else:  # the pieces not in lower case only
-                keep = list(map(not_, map(str.islower, words)))
-                values = list(map(get, compress(words, keep)))
-                at = compress(range(len(words)), keep)
-            # compress drops the pieces the table does not hold (value None)
-            hits = cast(Iterator[tuple[int, int]], compress(zip(at, values, strict=True), values))
-            for i, value in hits:
+            n = len(words)
+            for i, word in enumerate(words):
+                if not every and word.islower():
+                    continue  # no key has a piece in lower case only
+                value = get(word)
+                if value is None:
+                    continue
                 if value >> shift:
                     found.append((i, i, rank, (value >> shift) - 1))
                 if value & mask > 1:
-                    phrase = words[i]
-                    for j in range(i + 1, min(len(words), i + (value & mask))):
+                    phrase = word
+                    for j in range(i + 1, min(n, i + (value & mask))):
                         phrase += " " + words[j] if spaced is None else spaced[j]
                         row = get(phrase, 0) >> shift
                         if row:
