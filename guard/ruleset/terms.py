@@ -378,12 +378,12 @@ class TermMatcher:
         """
         if not text or not self._tables:
             return ()
+        squeezed = text.replace(" ", "")
+        lower = squeezed.isascii() and squeezed.isalpha() and squeezed.islower()
+        if lower and not self._lower:
+            return ()  # ASCII lower-case words only, and no key has a lower-case piece
         if text.isascii() and text.isprintable() and "  " not in text:
-            squeezed = text.replace(" ", "")
             if squeezed.isalnum():  # words between single spaces: the words are the pieces
-                lower = squeezed.isalpha() and squeezed.islower()
-                if lower and not self._lower:
-                    return ()  # lower-case words only, and no key has a lower-case piece
                 return self._find_simple(text, text.split(), None, lower)
             spaced = _SPACED_PIECE.findall(text)
             return self._find_simple(text, list(map(str.lstrip, spaced)), spaced, False)
