@@ -1000,6 +1000,8 @@ class _TermListCache:
         n, n_heads, terms_size, keys_size, heads_size = map(int, fields)
         lines, counts = array("L"), array("H")
         at = lines.itemsize * n + counts.itemsize * n_heads
+        if len(body) < at:  # a file that says more than it holds is not used
+            return None
         lines.frombytes(body[: lines.itemsize * n])
         counts.frombytes(body[lines.itemsize * n : at])
         if sys.byteorder != "little":

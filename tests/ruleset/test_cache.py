@@ -71,3 +71,21 @@ def test_no_cache_env_turns_it_off(
     root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
     load_sources([root / "r"], registry=registry)
     assert _cache_files(private_cache) == []
+
+
+def test_a_cache_file_that_says_more_than_it_holds_is_not_used(
+    write: Write, registry: Mapping[str, Rule], private_cache: Path
+) -> None:
+    import hashlib
+
+    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
+    first = load_sources([root / "r"], registry=registry)
+    (cached,) = _cache_files(private_cache)
+    head, _, body = cached.read_bytes().partition(b"\n")
+    fields = head.split(b" ")
+    # a short body under a header whose counts and hash are otherwise consistent
+    short = body[:10]
+    fields[2] = b"999999"  # rows
+    fields[-1] = hashlib.sha256(short).hexdigest().encode()
+    cached.write_bytes(b" ".join(fields) + b"\n" + short)
+    assert list(load_sources([root / "r"], registry=registry).terms) == list(first.terms)
