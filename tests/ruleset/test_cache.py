@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import hashlib
 from collections.abc import Callable, Mapping
 from pathlib import Path
 
@@ -9,7 +10,7 @@ import pytest
 
 from guard.errors import RulesetError
 from guard.rules.base import Rule
-from guard.ruleset.load import load_sources
+from guard.ruleset.load import ResolvedRuleset, load_sources
 from guard.ruleset.terms import TermMatcher
 
 Write = Callable[[dict[str, str | bytes]], Path]
@@ -27,12 +28,20 @@ def _cache_files(cache: Path) -> list[Path]:
     return sorted(cache.glob("guard/terms-*.txt"))
 
 
+def _load_cached(
+    write: Write, registry: Mapping[str, Rule], cache: Path
+) -> tuple[Path, ResolvedRuleset, Path]:
+    """(folder, ruleset, its one cache file) of a large list loaded once."""
+    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
+    first = load_sources([root / "r"], registry=registry)
+    (cached,) = _cache_files(cache)
+    return root, first, cached
+
+
 def test_a_large_list_is_cached_and_reads_back_the_same(
     write: Write, registry: Mapping[str, Rule], private_cache: Path
 ) -> None:
-    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
-    first = load_sources([root / "r"], registry=registry)
-    (cached,) = _cache_files(private_cache)
+    root, first, cached = _load_cached(write, registry, private_cache)
     again = load_sources([root / "r"], registry=registry)
     assert list(again.terms) == list(first.terms)
     assert len(first.terms) == 6000 - len(range(0, 6000, 7))
@@ -76,11 +85,7 @@ def test_no_cache_env_turns_it_off(
 def test_a_cache_file_that_says_more_than_it_holds_is_not_used(
     write: Write, registry: Mapping[str, Rule], private_cache: Path
 ) -> None:
-    import hashlib
-
-    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
-    first = load_sources([root / "r"], registry=registry)
-    (cached,) = _cache_files(private_cache)
+    root, first, cached = _load_cached(write, registry, private_cache)
     head, _, body = cached.read_bytes().partition(b"\n")
     fields = head.split(b" ")
     # a short body under a header whose counts and hash are otherwise consistent
