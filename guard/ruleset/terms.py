@@ -20,8 +20,8 @@ given, so case folding that changes lengths (``ß`` -> ``ss``, ``ﬁ`` -> ``fi``
 ``i`` + U+0307) needs no offset map at all. Only a text that is not in NFC is composed
 first, with a map back.
 
-Nothing here reads files; a matcher is read-only once built and may be shared by any
-number of threads.
+Nothing here reads files; a matcher is read-only once built (its memos of recent
+answers aside, which change no answer) and may be shared by any number of threads.
 """
 
 from __future__ import annotations
