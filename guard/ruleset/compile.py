@@ -1,6 +1,6 @@
 """Compile a resolved ruleset into the read-only form every check shares.
 
-Compiling builds what matching needs once: the term automata, the pair and critical-word
+Compiling builds what matching needs once: the term tables, the pair and critical-word
 tables keyed by folded text, and a lexicon provider that loads a language's word
 frequencies the first time a pair in that language asks. The result holds no mutable
 state a check could change, so one CompiledRuleset serves any number of threads.

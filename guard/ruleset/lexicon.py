@@ -30,8 +30,11 @@ import sys
 import tempfile
 from array import array
 from bisect import bisect_left
+from collections.abc import Callable
 from pathlib import Path
 from typing import TYPE_CHECKING
+
+from guard.ruleset.memo import Memo
 
 if TYPE_CHECKING:
     from langcodes import Language
@@ -55,7 +58,13 @@ class Lexicon:
     (4.5, 0.0, True)
     """
 
-    __slots__ = ("_bands", "_language", "_memo", "_words", "lang")
+    __slots__ = ("_bands", "_language", "_memo", "_words", "lang", "zipf")
+
+    zipf: Callable[[str], float]
+    """Zipf frequency of a word (case folded as wordfreq folds); 0.0 when unknown.
+
+    The rules ask this for every token of every rewrite, so it is a dict lookup in C
+    (a memo's ``__getitem__``), with Python only for words not yet asked."""
 
     def __init__(self, lang: str, words: list[str], bands: array[int]) -> None:
         if len(words) != len(bands):
@@ -66,7 +75,8 @@ class Lexicon:
         self._bands = bands
         # Words looked up lately: real traffic repeats its words, and a dict hit costs a
         # tenth of a folded bisection. Bounded; any thread may clear it, none may need it.
-        self._memo: dict[str, float] = {}
+        self._memo = Memo(self._zipf, _MEMO_SIZE)
+        self.zipf = self._memo.__getitem__
 
     @classmethod
     def from_words(cls, lang: str, band_by_word: dict[str, int]) -> Lexicon:
@@ -94,16 +104,9 @@ class Lexicon:
             return self._bands[i]
         return None
 
-    def zipf(self, word: str) -> float:
-        """Zipf frequency of ``word`` (case folded as wordfreq folds); 0.0 when unknown."""
-        got = self._memo.get(word)
-        if got is None:
-            band = self._band(word)
-            got = 0.0 if band is None else _ZIPF_OF_BAND[band]
-            if len(self._memo) >= _MEMO_SIZE:
-                self._memo.clear()
-            self._memo[word] = got
-        return got
+    def _zipf(self, word: str) -> float:
+        band = self._band(word)
+        return 0.0 if band is None else _ZIPF_OF_BAND[band]
 
     def known(self, word: str) -> bool:
         """True when wordfreq lists ``word`` in this language at all."""

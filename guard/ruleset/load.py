@@ -31,7 +31,7 @@ from collections.abc import Callable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 from types import MappingProxyType
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, cast
 
 import regex
 
@@ -53,7 +53,7 @@ from guard.ruleset.model import (
     Settings,
     TermEntry,
 )
-from guard.ruleset.terms import TermTable, collapse_spaces
+from guard.ruleset.terms import TermTable, collapse_spaces, first_pieces
 from guard.text.normalize import NormalizedText, hidden_characters, normalize_key
 
 if TYPE_CHECKING:
@@ -486,11 +486,12 @@ class _FileReader:
         if cache is not None:
             got = cache.read()
             if got is not None:
-                return TermTable(*got, [(0, file, kind, case)])
+                terms, keys, lines, heads = got
+                return TermTable(terms, keys, lines, [(0, file, kind, case)], [heads])
         limit = self.limits.max_term_chars
         errors_before = len(self.p.errors)
-        terms: list[str] = []
-        keys: list[NormalizedText] = []
+        terms = []
+        keys = []
         lines = array("L")
         for n, text in self.list_lines(file, data):
             if len(text) > limit:
@@ -501,9 +502,11 @@ class _FileReader:
             terms.append(text)
             keys.append(normalize_key(text, fold=fold))
             lines.append(n)
-        if cache is not None and len(self.p.errors) == errors_before:
-            cache.write(terms, keys, lines)
-        return TermTable(terms, keys, lines, [(0, file, kind, case)])
+        if cache is None or cache.folder is None or len(self.p.errors) > errors_before:
+            return TermTable(terms, keys, lines, [(0, file, kind, case)])
+        heads = first_pieces(keys)
+        cache.write(terms, keys, lines, heads)
+        return TermTable(terms, keys, lines, [(0, file, kind, case)], [heads])
 
     def read_list(self, path: Path, key: str) -> bytes | None:
         """The bytes of a list file, or None after reporting why they cannot be used."""
@@ -960,15 +963,17 @@ def _pattern_checks() -> _PatternChecks | None:
 class _TermListCache:
     """A parsed term list kept in the private cache folder, keyed by the list's bytes.
 
-    Parsing a large list (comments, spaces, NFC and case folding of every line) is most
-    of the cost of loading a big ruleset; a list that parsed without a problem is stored
-    as columns (line numbers, terms, keys) and read back with a few splits. The key holds
-    everything the columns depend on: the list's SHA-256, the case policy, the term length
-    limit and the Unicode version of the normalization. Small lists are not worth a file.
+    Parsing a large list (comments, spaces, NFC and case folding of every line, cutting
+    keys into pieces) is most of the cost of loading a big ruleset; a list that parsed
+    without a problem is stored as columns (line numbers, terms, keys unless they are the
+    terms themselves, and the keys' first pieces with their counts) and read back with a
+    few splits. The key holds everything the columns depend on: the list's SHA-256, the
+    case policy, the term length limit and the Unicode version of the normalization.
+    Small lists are not worth a file.
     """
 
     MIN_LINES = 5_000
-    FORMAT = "guard-terms 1"
+    FORMAT = "guard-terms 2"
 
     def __init__(self, data: bytes, fold: bool, limits: Limits) -> None:
         from guard.ruleset.lexicon import cache_dir
@@ -978,7 +983,10 @@ class _TermListCache:
         digest.update(f"|{fold}|{limits.max_term_chars}|{unicodedata.unidata_version}".encode())
         self.name = f"terms-{digest.hexdigest()[:32]}.txt"
 
-    def read(self) -> tuple[list[str], list[NormalizedText], array[int]] | None:
+    def read(
+        self,
+    ) -> tuple[list[str], list[NormalizedText], array[int], dict[str, int]] | None:
+        """(terms, keys, lines, first pieces) as written, or None."""
         from guard.ruleset.lexicon import read_private
 
         if self.folder is None:
@@ -987,39 +995,58 @@ class _TermListCache:
         if got is None:
             return None
         fields, body = got
-        if len(fields) != 2 or not all(f.isdigit() for f in fields):
+        if len(fields) != 5 or not all(f.isdigit() for f in fields):
             return None
-        n, size = int(fields[0]), int(fields[1])
-        lines = array("L")
-        width = lines.itemsize
-        lines.frombytes(body[: width * n])
+        n, n_heads, terms_size, keys_size, heads_size = map(int, fields)
+        lines, counts = array("L"), array("H")
+        at = lines.itemsize * n + counts.itemsize * n_heads
+        if len(body) < at:  # a file that says more than it holds is not used
+            return None
+        lines.frombytes(body[: lines.itemsize * n])
+        counts.frombytes(body[lines.itemsize * n : at])
         if sys.byteorder != "little":
             lines.byteswap()
+            counts.byteswap()
         try:
-            text = body[width * n :].decode("utf-8")
+            text = body[at:].decode("utf-8")
         except UnicodeDecodeError:
             return None
-        terms = text[:size].split("\n") if n else []
-        # keys were made by normalize_key when the list was parsed; the body's hash and
-        # the cache key (which holds the Unicode version) vouch that they still are its
-        keys = [NormalizedText(k) for k in text[size + 1 :].split("\n")] if n else []
-        if not len(terms) == len(keys) == len(lines) == n:
+        if len(text) != terms_size + keys_size + heads_size:
             return None
-        return terms, keys, lines
+        terms = text[:terms_size].split("\n") if n else []
+        # keys were made by normalize_key when the list was parsed; the body's hash and
+        # the cache key (which holds the Unicode version) vouch that they still are its.
+        # No keys stored: each key is its term (exact NFC terms, most lists).
+        keys = text[terms_size + 1 : terms_size + keys_size].split("\n") if keys_size else terms
+        heads = text[terms_size + keys_size + 1 :].split("\n") if n_heads else []
+        if not len(terms) == len(keys) == len(lines) == n or len(heads) != n_heads:
+            return None
+        return terms, cast(list[NormalizedText], keys), lines, dict(zip(heads, counts, strict=True))
 
-    def write(self, terms: list[str], keys: list[NormalizedText], lines: array[int]) -> None:
+    def write(
+        self,
+        terms: list[str],
+        keys: list[NormalizedText],
+        lines: array[int],
+        heads: Mapping[str, int],
+    ) -> None:
         from guard.ruleset.lexicon import write_private
 
         if self.folder is None or not terms:
             return
         column = array("L", lines)
+        counts = array("H", heads.values())
         if sys.byteorder != "little":
             column.byteswap()
-        joined = "\n".join(terms)
-        body = column.tobytes() + (joined + "\n" + "\n".join(keys)).encode("utf-8")
-        write_private(
-            self.folder / self.name, self.FORMAT, [str(len(terms)), str(len(joined))], body
-        )
+            counts.byteswap()
+        text_terms = "\n".join(terms)
+        # "\n" leads the keys (and heads) section, so an empty section is an empty string
+        text_keys = "" if keys == terms else "\n" + "\n".join(keys)
+        text_heads = "\n" + "\n".join(heads) if heads else ""
+        body = column.tobytes() + counts.tobytes()
+        body += (text_terms + text_keys + text_heads).encode("utf-8")
+        fields = [len(terms), len(heads), len(text_terms), len(text_keys), len(text_heads)]
+        write_private(self.folder / self.name, self.FORMAT, [str(f) for f in fields], body)
 
 
 # ------------------------------------------------------------------ the chain

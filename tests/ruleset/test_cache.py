@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import hashlib
 from collections.abc import Callable, Mapping
 from pathlib import Path
 
@@ -9,7 +10,8 @@ import pytest
 
 from guard.errors import RulesetError
 from guard.rules.base import Rule
-from guard.ruleset.load import load_sources
+from guard.ruleset.load import ResolvedRuleset, load_sources
+from guard.ruleset.terms import TermMatcher
 
 Write = Callable[[dict[str, str | bytes]], Path]
 
@@ -26,12 +28,20 @@ def _cache_files(cache: Path) -> list[Path]:
     return sorted(cache.glob("guard/terms-*.txt"))
 
 
+def _load_cached(
+    write: Write, registry: Mapping[str, Rule], cache: Path
+) -> tuple[Path, ResolvedRuleset, Path]:
+    """(folder, ruleset, its one cache file) of a large list loaded once."""
+    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
+    first = load_sources([root / "r"], registry=registry)
+    (cached,) = _cache_files(cache)
+    return root, first, cached
+
+
 def test_a_large_list_is_cached_and_reads_back_the_same(
     write: Write, registry: Mapping[str, Rule], private_cache: Path
 ) -> None:
-    root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
-    first = load_sources([root / "r"], registry=registry)
-    (cached,) = _cache_files(private_cache)
+    root, first, cached = _load_cached(write, registry, private_cache)
     again = load_sources([root / "r"], registry=registry)
     assert list(again.terms) == list(first.terms)
     assert len(first.terms) == 6000 - len(range(0, 6000, 7))
@@ -39,6 +49,12 @@ def test_a_large_list_is_cached_and_reads_back_the_same(
     assert (entry.term, entry.key, entry.origin.line) == ("İstanbul1", "i̇stanbul1", 3)
     uncached = load_sources([root / "r"], registry=registry, use_cache=False)
     assert list(uncached.terms) == list(first.terms)
+    # the first pieces kept with the list find what the uncached list finds
+    text = "bilge pump3 and C#4, İSTANBUL1 STRASSE6 bilge  pump9 bilge pump7"
+    found = TermMatcher(again.terms).find(text)
+    assert found == TermMatcher(uncached.terms).find(text)
+    expected = ["bilge pump3", "C#4", "İSTANBUL1", "STRASSE6", "bilge  pump9"]  # 7: blank
+    assert [text[h.start : h.end] for h in found] == expected
     # a changed cache file is not trusted: the list is parsed again and the file rewritten
     cached.write_bytes(cached.read_bytes()[:-3] + b"zzz")
     assert list(load_sources([root / "r"], registry=registry).terms) == list(first.terms)
@@ -64,3 +80,17 @@ def test_no_cache_env_turns_it_off(
     root = write({"r/ruleset.toml": TOML, "r/t.txt": _big_list(6000)})
     load_sources([root / "r"], registry=registry)
     assert _cache_files(private_cache) == []
+
+
+def test_a_cache_file_that_says_more_than_it_holds_is_not_used(
+    write: Write, registry: Mapping[str, Rule], private_cache: Path
+) -> None:
+    root, first, cached = _load_cached(write, registry, private_cache)
+    head, _, body = cached.read_bytes().partition(b"\n")
+    fields = head.split(b" ")
+    # a short body under a header whose counts and hash are otherwise consistent
+    short = body[:10]
+    fields[2] = b"999999"  # rows
+    fields[-1] = hashlib.sha256(short).hexdigest().encode()
+    cached.write_bytes(b" ".join(fields) + b"\n" + short)
+    assert list(load_sources([root / "r"], registry=registry).terms) == list(first.terms)

@@ -8,13 +8,16 @@ U+FB01 ﬁ -> "fi". Canonical equivalence of "é" and "e" + U+0301 is from UAX #
 
 from __future__ import annotations
 
+import unicodedata
+
 import pytest
+import regex
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from guard.records import Origin
 from guard.ruleset.model import CasePolicy, TermEntry
-from guard.ruleset.terms import TermMatcher
+from guard.ruleset.terms import TermMatcher, first_pieces, pieces
 from guard.text.normalize import normalize_key
 
 
@@ -187,3 +190,89 @@ def test_a_term_set_apart_by_spaces_is_always_found(
     got = spans(_TERMS, text)
     for hit in expected:
         assert hit in got
+
+
+# ----------------------------------------------------------- against a plain reading
+
+# The module docstring's definition of a piece, written out again here: a run of letters,
+# marks and digits; a character of a script written without spaces, with its marks; any
+# other character that is not white space, alone.
+_UNSPACED = r"\p{Han}\p{Hiragana}\p{Katakana}\p{Thai}\p{Lao}\p{Khmer}\p{Myanmar}"
+_ORACLE_PIECE = regex.compile(
+    rf"[{_UNSPACED}]\p{{M}}*|[[\p{{L}}\p{{M}}\p{{N}}]--[{_UNSPACED}]]+|\S", regex.V1
+)
+
+
+def _oracle(terms: list[TermEntry], text: str) -> list[tuple[int, int, TermEntry]]:
+    """Every run of pieces whose phrase (pieces joined by one space where white space
+    parts them) is a key, exact terms before fold terms and the first listing first; then
+    the longest of overlapping hits, on a tie the earlier, then the exact."""
+    keys: dict[tuple[int, str], TermEntry] = {}
+    for e in terms:
+        keys.setdefault((0 if e.case is EXACT else 1, e.key), e)
+    spans = [m.span() for m in _ORACLE_PIECE.finditer(text)]
+    found = []
+    for rank in (0, 1):
+        for i in range(len(spans)):
+            phrase = ""
+            for j in range(i, len(spans)):
+                piece = text[spans[j][0] : spans[j][1]]
+                gap = " " if j > i and spans[j][0] > spans[j - 1][1] else ""
+                phrase += gap + (piece.casefold() if rank else piece)
+                hit = keys.get((rank, phrase))
+                if hit is not None:
+                    found.append((spans[i][0], spans[j][1], rank, hit))
+    found.sort(key=lambda h: (h[0] - h[1], h[0], h[2]))
+    taken: list[tuple[int, int, TermEntry]] = []
+    for start, end, _, e in found:
+        if all(end <= s or start >= t for s, t, _ in taken):
+            taken.append((start, end, e))
+    return sorted(taken, key=lambda h: h[0])
+
+
+_WORDS = ["KT", "XR-220", "Tromel", "pump", "Pump", "4821", "Ilse", "DR.", "a", "İSTANBUL",
+          "Straße", "東京", "C#", "bilge"]
+
+
+@given(
+    st.lists(
+        st.tuples(st.lists(st.sampled_from(_WORDS), min_size=1, max_size=3), st.booleans()),
+        max_size=6,
+    ),
+    st.lists(
+        st.one_of(
+            st.sampled_from(_WORDS),
+            st.sampled_from([" ", " ", "  ", "\t", "-", ".", ",", "\u00a0", "\x1c"]),
+            st.text(max_size=2),
+        ),
+        max_size=14,
+    ),
+)
+@settings(max_examples=500, deadline=None)
+def test_find_agrees_with_a_plain_reading_of_the_rules(
+    specs: list[tuple[list[str], bool]], parts: list[str]
+) -> None:
+    # Lists of codes and names only (no lower-case piece) take the matcher's shortcut past
+    # lower-case words; lists with one take the other way: both are drawn here.
+    terms = [
+        entry(" ".join(words), CasePolicy.FOLD if fold else EXACT, line=n)
+        for n, (words, fold) in enumerate(specs, 1)
+    ]
+    for text in ("".join(parts), " ".join(parts), " ".join(parts).lower()):
+        text = unicodedata.normalize("NFC", text)
+        assert [(s, e, h.term) for s, e, h in _oracle(terms, text)] == spans(terms, text)
+
+
+@given(
+    st.lists(
+        st.lists(st.sampled_from([*_WORDS, " ", "-", "\x1c", "é", "\u0301"]), max_size=5),
+        max_size=4,
+    )
+)
+def test_first_pieces_keeps_the_most_pieces_of_each_first_piece(keys: list[list[str]]) -> None:
+    expected: dict[str, int] = {}
+    for parts in keys:
+        cut = pieces("".join(parts))
+        if len(cut) > 1:
+            expected[cut[0]] = max(expected.get(cut[0], 0), len(cut))
+    assert first_pieces(["".join(parts) for parts in keys]) == expected
