@@ -152,7 +152,7 @@ class Settings:
 class CompiledRuleset:
     """Everything rules need, compiled once. Read-only after construction.
 
-    Term lookups go through ``find_terms`` (one Aho-Corasick pass over the text) and
+    Term lookups go through ``find_terms`` (dict lookups over the pieces of the text) and
     ``lookup_term`` (one token or phrase). Both work on original-text offsets: case folding
     may change lengths (ß -> ss), and the offset map is only computed where a term is found.
     """
