@@ -35,7 +35,7 @@ class _LangRules:
     pair: tuple[_Bound, ...]
 
 
-MEMO_SIZE = 1 << 16
+MEMO_SIZE = 1 << 14
 """Rewrites whose local findings an engine keeps; it forgets them all when full."""
 
 _RuleMemo = dict[tuple[object, ...], tuple[Finding, ...]]

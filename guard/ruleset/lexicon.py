@@ -41,7 +41,7 @@ if TYPE_CHECKING:
 
 _FORMAT = "guard-lexicon 2"
 _NONASCII_FOLD_LANGS = frozenset({"tr", "az"})  # their I/i fold differently, even in ASCII
-_MEMO_SIZE = 50_000  # words remembered per lexicon (a few MB)
+_MEMO_SIZE = 16_384  # words remembered per lexicon (about a megabyte)
 _MAX_CB = 1000  # wordfreq's bands run from 0 to about 900 cB below frequency 1
 
 

@@ -67,7 +67,7 @@ def shape_of(text: str) -> Shape:
 _CACHED_LENGTH = 64
 
 
-@functools.lru_cache(maxsize=1 << 15)
+@functools.lru_cache(maxsize=1 << 13)
 def _shape_of(text: str) -> Shape:
     return _find_shape(text)
 

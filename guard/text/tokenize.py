@@ -254,7 +254,7 @@ def _plain_spans(text: str) -> tuple[Span, ...]:
 _CACHED_LENGTH = 64
 
 
-@functools.lru_cache(maxsize=1 << 15)
+@functools.lru_cache(maxsize=1 << 13)
 def _cached_spans(text: str) -> tuple[Span, ...]:
     return _scan(text)
 
