@@ -70,6 +70,8 @@ def guard_checker(
     """The engine's checker for these rulesets (raises RulesetError when they are bad).
 
     ``overrides`` are settings by key path (``rules.edit-budget.action``), applied last.
+    Meant for a batch process: it calls ``gc.freeze()`` once the ruleset is loaded, which
+    leaves everything alive at that moment out of later garbage collections.
     """
     from guard.api import Guard, load_ruleset
 
