@@ -45,12 +45,13 @@ def _quoted(source: str, tok: Token) -> bool:
 
 
 def _abbreviated(source: str, tok: Token) -> bool:
-    return _ABBREVIATION.match(source, tok.end) is not None
+    return source[tok.end : tok.end + 1] == "." and _ABBREVIATION.match(source, tok.end) is not None
 
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
-    quotes = settings.option("quotes", ctx.lang)
+    # no quote mark anywhere in the source: no word of it can stand between two
+    quotes = settings.option("quotes", ctx.lang) and any(q in ctx.source for q in _OPENING)
     abbreviations = settings.option("abbreviations", ctx.lang)
     new_texts = {t.text for t in content_tokens(rw.new_tokens)}
     for tok in content_tokens(rw.old_tokens):
