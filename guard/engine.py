@@ -1,7 +1,9 @@
 """The checking pipeline for one pair: tokenize -> align -> rules -> decide -> guarded text.
 
 A Guard holds one compiled ruleset and the list of active rules with their settings; both
-are read-only, so one Guard serves any number of threads. Nothing here does I/O.
+are read-only, so one Guard serves any number of threads. The one thing that changes is
+a memo of findings, which any thread may fill or empty (single dict operations) without
+changing an answer. Nothing here does I/O.
 """
 
 from __future__ import annotations
