@@ -17,11 +17,16 @@ from __future__ import annotations
 
 from collections import Counter
 
-from rapidfuzz.distance import OSA
-
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import UNKNOWN_BELOW, content_tokens, one_word_change, protected, zipf
+from guard.rules.words import (
+    UNKNOWN_BELOW,
+    content_tokens,
+    one_word_change,
+    protected,
+    within_edits,
+    zipf,
+)
 from guard.ruleset.model import RuleSettings
 from guard.text.normalize import normalize_key
 
@@ -88,7 +93,7 @@ def _frequent_misspelling(ctx: PairContext, rw: Rewrite, settings: RuleSettings)
     if gain <= 0.0 or change is None or ctx.lexicon is None or protected(ctx, change[0]):
         return False
     old, new = change
-    if OSA.distance(old.casefold(), new.casefold(), score_cutoff=1) > 1:
+    if not within_edits(old, new, 1):
         return False
     return zipf(ctx, new) - zipf(ctx, old) >= gain
 

@@ -15,11 +15,16 @@ Vetoes: "NASA" -> "Nasa"; "JSON" -> "Jason". Flags: "met Mrs Kowalczyk" -> "met 
 
 from __future__ import annotations
 
-from rapidfuzz.distance import OSA
-
 from guard.records import Action, Finding, Rewrite, Tier, Token, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import UNKNOWN_BELOW, content_tokens, domain_known, protected, zipf
+from guard.rules.words import (
+    UNKNOWN_BELOW,
+    content_tokens,
+    domain_known,
+    protected,
+    within_edits,
+    zipf,
+)
 from guard.ruleset.model import RuleSettings
 from guard.text.shape import Shape, shape_of
 
@@ -84,9 +89,7 @@ def _is_typo_fix(
     min_target = settings.option("min-target-zipf", ctx.lang)
     assert isinstance(max_fix, int) and isinstance(min_target, float)
     return (
-        shape_of(new) is shape
-        and zipf(ctx, new) >= min_target
-        and OSA.distance(old.casefold(), new.casefold()) <= max_fix
+        shape_of(new) is shape and zipf(ctx, new) >= min_target and within_edits(old, new, max_fix)
     )
 
 

@@ -18,6 +18,8 @@ file and line.
 
 from __future__ import annotations
 
+from rapidfuzz.distance import Postfix, Prefix
+
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.ruleset.model import CasePolicy, RuleSettings
@@ -30,13 +32,8 @@ def _changed_span(rw: Rewrite) -> tuple[int, int]:
     """Source offsets of the characters the rewrite changes: its span less the longest
     common prefix and suffix of old and new text (empty for a pure insertion)."""
     old, new = rw.old, rw.new
-    prefix = 0
-    most = min(len(old), len(new))
-    while prefix < most and old[prefix] == new[prefix]:
-        prefix += 1
-    suffix = 0
-    while suffix < most - prefix and old[-1 - suffix] == new[-1 - suffix]:
-        suffix += 1
+    prefix = Prefix.similarity(old, new)
+    suffix = min(Postfix.similarity(old, new), min(len(old), len(new)) - prefix)
     return rw.start + prefix, rw.end - suffix
 
 

@@ -21,11 +21,9 @@ Accepts: "teh" -> "the" (Zipf gain above min-gain). Vetoes: "kernel" -> "kennel"
 
 from __future__ import annotations
 
-from rapidfuzz.distance import OSA
-
 from guard.records import Action, Finding, Refinement, Rewrite, RewriteKind, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import content_tokens, phrase_zipf, zipf
+from guard.rules.words import content_tokens, phrase_zipf, within_edits, zipf
 from guard.ruleset.model import RuleSettings
 
 NAME = "real-word"
@@ -51,8 +49,7 @@ def _near(rw: Rewrite, settings: RuleSettings, lang: str) -> bool:
     assert isinstance(most, int)
     if most < 0:
         return True  # no limit
-    old, new = rw.old.casefold(), rw.new.casefold()
-    return OSA.distance(old, new, score_cutoff=most) <= most
+    return within_edits(rw.old, rw.new, most)
 
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:

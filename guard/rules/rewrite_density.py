@@ -16,11 +16,9 @@ Vetoes: "the bilge pump is noisy today" -> "a quiet pump was fitted yesterday".
 
 from __future__ import annotations
 
-from rapidfuzz.distance import OSA
-
 from guard.records import Action, Finding, Rewrite, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import UNKNOWN_BELOW, content_tokens, one_word_change, zipf
+from guard.rules.words import UNKNOWN_BELOW, content_tokens, one_word_change, within_edits, zipf
 from guard.ruleset.model import RuleSettings
 
 NAME = "rewrite-density"
@@ -34,7 +32,7 @@ def _typo_fix(rw: Rewrite, ctx: PairContext, below: float) -> bool:
     if change is None:
         return False
     old, new = change
-    if OSA.distance(old.casefold(), new.casefold(), score_cutoff=1) > 1:
+    if not within_edits(old, new, 1):
         return False
     return zipf(ctx, old) < below <= zipf(ctx, new)
 

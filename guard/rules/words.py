@@ -7,6 +7,7 @@ Pure helpers over the pair context; no rule logic lives here.
 from __future__ import annotations
 
 import regex
+from rapidfuzz.distance import OSA
 
 from guard.records import Rewrite, Token, TokenKind
 from guard.rules.base import OptionSpec, PairContext
@@ -57,6 +58,16 @@ def one_word_change(rw: Rewrite) -> tuple[str, str] | None:
     if len(old) == 1 and len(new) == 1:
         return old[0].text, new[0].text
     return None
+
+
+def within_edits(old: str, new: str, most: int) -> bool:
+    """Whether ``old`` and ``new`` are at most ``most`` edits apart, case folded (optimal
+    string alignment: a swap of neighbours is one edit), the reach of a typo.
+
+    >>> within_edits("Teh", "the", 1), within_edits("pump", "plump", 0)
+    (True, False)
+    """
+    return OSA.distance(old.casefold(), new.casefold(), score_cutoff=most) <= most
 
 
 def zipf(ctx: PairContext, word: str) -> float:
