@@ -375,6 +375,19 @@ def align(source: str, proposal: str) -> tuple[Rewrite, ...]:
                 new_tokens=(Token(text=prop_win, start=start, end=prop_end, kind=one_b[0][2]),),
             ),
         )
+    if " " in src_win:
+        fixes = _word_for_word(src_win, prop_win, start, one_a, one_b)
+        if fixes is not None:
+            return fixes
+    return _by_opcodes(source, proposal, start, one_a, one_b)
+
+
+def _by_opcodes(
+    source: str, proposal: str, start: int, one_a: Sequence[_Span], one_b: Sequence[_Span]
+) -> tuple[Rewrite, ...]:
+    """The general path: rapidfuzz's opcodes over the window's tokens (``one_a``,
+    ``one_b``: its spans, relative to ``start``), realigned where words were split or
+    joined."""
     a_spans = [(s + start, e + start, k) for s, e, k in one_a]
     b_spans = [(s + start, e + start, k) for s, e, k in one_b]
     a = [source[s:e] for s, e, _ in a_spans]
@@ -406,6 +419,65 @@ def align(source: str, proposal: str) -> tuple[Rewrite, ...]:
             )
         )
     return tuple(rewrites)
+
+
+# More changed words than this may have another alignment as cheap as the word-for-word
+# one (see _word_for_word).
+_WORD_FOR_WORD_MAX = 3
+
+
+def _word_for_word(
+    src_win: str,
+    prop_win: str,
+    start: int,
+    a_spans: Sequence[_Span],
+    b_spans: Sequence[_Span],
+) -> tuple[Rewrite, ...] | None:
+    """The rewrites of a window where the speller changed a few words but not the
+    spacing, or None when the window is not that simple.
+
+    Two fixes in one query ("juust ttial for" -> "just trial for") put spaces inside
+    the window, and the general path then runs Levenshtein opcodes over all of it. When
+    both windows alternate word and whitespace tokens, token for token, and differ only
+    in at most three words, the word-for-word substitutions are the only cheapest
+    alignment: any other has a deletion and an insertion, and either shifts words onto
+    whitespace over the stretch between them (one substitution per token there, more than
+    the changed words it could save) or shifts by a word and its space at both ends (four
+    edits). So the general path would cut exactly these rewrites (a property test
+    compares the two); this finds them from the spans alone.
+    """
+    if len(a_spans) != len(b_spans):
+        return None
+    out: list[Rewrite] = []
+    space = a_spans[0][2] is _SPACE_KIND
+    for (s, e, k), (t, f, q) in zip(a_spans, b_spans, strict=True):
+        if (k is _SPACE_KIND) is not space:
+            return None  # not one word, one space, one word...
+        space = not space
+        old, new = src_win[s:e], prop_win[t:f]
+        if old == new:
+            continue
+        if k is _SPACE_KIND or q is _SPACE_KIND or len(out) == _WORD_FOR_WORD_MAX:
+            return None
+        out.append(
+            Rewrite(
+                index=len(out),
+                start=start + s,
+                end=start + e,
+                old=old,
+                new=new,
+                new_start=start + t,
+                new_end=start + f,
+                kind=RewriteKind.REPLACE,
+                refinement=_refinement(old, new),
+                old_tokens=(Token(text=old, start=start + s, end=start + e, kind=k),),
+                new_tokens=(Token(text=new, start=start + t, end=start + f, kind=q),),
+            )
+        )
+    return tuple(out)
+
+
+_SPACE_KIND = TokenKind.SPACE
 
 
 def _position(span_list: Sequence[_Span], i: int, window_start: int) -> int:

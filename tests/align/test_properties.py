@@ -17,8 +17,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from guard.align import align, apply
+from guard.align import rewrites as rewrites_module
 from guard.records import Refinement, RewriteKind
-from guard.text.tokenize import tokenize
+from guard.text.tokenize import spans, tokenize
 
 PIECES = [
     "pump",
@@ -187,3 +188,49 @@ def test_one_space_less_is_one_join_and_back_one_split(
     assert join.old.replace(" ", "") == join.new
     (split,) = align(proposal, source)
     assert (split.kind, split.refinement) == (RewriteKind.SPLIT, Refinement.SPACING)
+
+
+# Few distinct words, so that repeated words and shifted sequences (the cases where
+# another alignment could tie with word-for-word substitution) come up often.
+FEW_WORDS = st.sampled_from(["a", "b", "ab", "pump", "XR-220", "e\u0301", "東", ",", "a,"])
+SPACES = st.sampled_from([" ", " ", " ", "  ", "\t", "\u00a0"])
+
+
+@st.composite
+def word_swaps(draw: st.DrawFn) -> tuple[str, str]:
+    """A sentence and the same sentence with some words swapped for others, the spacing
+    mostly kept: what a speller fixing several words of one query gives."""
+    words = draw(st.lists(FEW_WORDS, min_size=1, max_size=9))
+    gaps = draw(st.lists(SPACES, min_size=len(words) + 1, max_size=len(words) + 1))
+    lead, trail = draw(st.booleans()), draw(st.booleans())
+    new_words = list(words)
+    if len(words) > 1 and draw(st.booleans()):  # a stretch shifted by a word
+        i, j = sorted(draw(st.lists(st.integers(0, len(words) - 1), min_size=2, max_size=2)))
+        new_words[i:j] = words[i + 1 : j + 1]
+    for i in draw(st.lists(st.integers(0, len(words) - 1), max_size=5)):
+        new_words[i] = draw(FEW_WORDS)
+    if draw(st.integers(0, 9)) == 0:  # now and then the spacing changes too
+        gaps[draw(st.integers(0, len(gaps) - 1))] = draw(SPACES)
+
+    def join(ws: list[str], gs: list[str]) -> str:
+        inner = "".join(w + g for w, g in zip(ws, gs[1:-1], strict=False)) + ws[-1]
+        return (gs[0] if lead else "") + inner + (gs[-1] if trail else "")
+
+    return join(words, gaps), join(new_words, gaps)
+
+
+@settings(max_examples=3000, deadline=None)
+@given(word_swaps() | pairs())
+def test_word_for_word_shortcut_matches_the_general_path(pair: tuple[str, str]) -> None:
+    # The shortcut claims the opcodes path would cut the same rewrites (its docstring
+    # argues why); this compares the two on the same window.
+    source, proposal = pair
+    if source == proposal:
+        return
+    start, src_end, prop_end = rewrites_module._window(source, proposal)
+    a, b = spans(source[start:src_end]), spans(proposal[start:prop_end])
+    fast = rewrites_module._word_for_word(
+        source[start:src_end], proposal[start:prop_end], start, a, b
+    )
+    if fast is not None:
+        assert fast == rewrites_module._by_opcodes(source, proposal, start, a, b)
