@@ -160,15 +160,25 @@ class Engine:
             f for check, settings in rules.pair if (f := check(None, ctx, settings)) is not None
         ]
         verdicts = decide(rewrites, per_rewrite, pair_findings, rs)
+        verdict = pair_verdict(verdicts)
+        if verdict is Verdict.ACCEPT:  # every rewrite stands: both guarded texts are the proposal
+            guarded = guarded_strict = proposal
+        else:
+            guarded = _guarded(source, proposal, verdicts, keep=_ACCEPT_OR_FLAG)
+            guarded_strict = (
+                guarded
+                if all(v.verdict is not Verdict.FLAG for v in verdicts)
+                else _guarded(source, proposal, verdicts, keep=_ACCEPT_ONLY)
+            )
         return Report(
             source=source,
             proposal=proposal,
             lang=lang,
-            verdict=pair_verdict(verdicts),
+            verdict=verdict,
             rewrites=verdicts,
             pair_findings=tuple(pair_findings),
-            guarded=_guarded(source, proposal, verdicts, keep=_ACCEPT_OR_FLAG),
-            guarded_strict=_guarded(source, proposal, verdicts, keep=_ACCEPT_ONLY),
+            guarded=guarded,
+            guarded_strict=guarded_strict,
             ruleset=rs.name,
         )
 

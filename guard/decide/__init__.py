@@ -26,8 +26,11 @@ def decide(
 ) -> tuple[RewriteVerdict, ...]:
     """One verdict per rewrite, in order."""
     out: list[RewriteVerdict] = []
+    pair = tuple(pair_findings)
     for rw in rewrites:
-        own = tuple(findings.get(rw.index, ())) + tuple(pair_findings)
+        own = tuple(findings.get(rw.index, ()))
+        if pair:
+            own += pair
         allowed = find_pair(ruleset.allowed, rw) if ruleset.allowed else None
         if allowed is not None:
             kept = tuple(f for f in own if f.tier is Tier.HARD)

@@ -28,7 +28,7 @@ from guard.rules.words import (
     zipf,
 )
 from guard.ruleset.model import RuleSettings
-from guard.text.normalize import normalize_key
+from guard.text.normalize import NormalizedText, normalize_key
 
 NAME = "critical-word"
 
@@ -38,16 +38,8 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     critical = ctx.ruleset.critical
     if not critical:
         return None
-    old_keys = [
-        k
-        for t in content_tokens(rw.old_tokens)
-        if (k := normalize_key(t.text, fold=True)) in critical
-    ]
-    new_keys = [
-        k
-        for t in content_tokens(rw.new_tokens)
-        if (k := normalize_key(t.text, fold=True)) in critical
-    ]
+    old_keys = [k for t in content_tokens(rw.old_tokens) if (k := _key(t.text)) in critical]
+    new_keys = [k for t in content_tokens(rw.new_tokens) if (k := _key(t.text)) in critical]
     if old_keys == new_keys:  # the usual case: no critical word on either side
         return None
     old, new = Counter(old_keys), Counter(new_keys)
@@ -71,6 +63,12 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
         removed=tuple(removed),
         added=tuple(added),
     )
+
+
+def _key(text: str) -> NormalizedText:
+    """The critical list's key of a word: ``normalize_key``, whose NFC step leaves ASCII
+    as it is and whose case folding of ASCII is lower-casing (CaseFolding.txt)."""
+    return NormalizedText(text.lower()) if text.isascii() else normalize_key(text, fold=True)
 
 
 def _typo_fix(ctx: PairContext, rw: Rewrite, settings: RuleSettings) -> bool:

@@ -83,7 +83,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     per = settings.option("letters-per-edit", lang)
     cap = settings.option("max-distance", lang)
     assert isinstance(cost, float) and isinstance(per, int) and isinstance(cap, int)
-    letters = max(len(t.text) for t in old_words)
+    letters = len(old_words[0].text) if len(old_words) == 1 else max(len(t.text) for t in old_words)
     budget = min(cap, max(1, letters // max(per, 1)))
     if OSA.distance(old, new, score_cutoff=budget) <= budget:
         return None  # within budget before any keyboard discount

@@ -37,8 +37,8 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     new_tokens = content_tokens(rw.new_tokens)
     new_texts = {t.text for t in new_tokens}
     for tok in content_tokens(rw.old_tokens):
-        if tok.kind is not TokenKind.WORD or tok.text in new_texts:
-            continue
+        if tok.kind is not TokenKind.WORD or tok.text.islower() or tok.text in new_texts:
+            continue  # islower: no capital, so no shape this rule protects
         shape = shape_of(tok.text)
         if shape in (Shape.ALLCAPS, Shape.INTERNAL_CAP) and sum(c.isalpha() for c in tok.text) >= 2:
             action = None

@@ -24,6 +24,7 @@ from guard.ruleset.model import RuleSettings
 NAME = "mentioned-word"
 _OPENING = "'\"‘“«‹»›`„‚"
 _CLOSING = "'\"’”»›«‹`“‘"
+_ANY_OPENING = regex.compile("[" + regex.escape(_OPENING) + "]")
 _ABBREVIATION = regex.compile(r"\.[ \t\u00a0]+\p{Ll}")
 
 
@@ -50,9 +51,13 @@ def _abbreviated(source: str, tok: Token) -> bool:
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
-    # no quote mark anywhere in the source: no word of it can stand between two
-    quotes = settings.option("quotes", ctx.lang) and any(q in ctx.source for q in _OPENING)
-    abbreviations = settings.option("abbreviations", ctx.lang)
+    source = ctx.source
+    # no quote mark anywhere in the source: no word of it can stand between two; and
+    # an abbreviation needs a period
+    quotes = _ANY_OPENING.search(source) is not None and settings.option("quotes", ctx.lang)
+    abbreviations = "." in source and settings.option("abbreviations", ctx.lang)
+    if not quotes and not abbreviations:
+        return None
     new_texts = {t.text for t in content_tokens(rw.new_tokens)}
     for tok in content_tokens(rw.old_tokens):
         if tok.kind is not TokenKind.WORD or tok.text in new_texts:
