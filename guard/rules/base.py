@@ -62,6 +62,10 @@ class PairContext:
 
 
 CheckFn = Callable[["Rewrite | None", PairContext, "RuleSettings"], "Finding | None"]
+"""A rule's check: the rewrite (None for a pair rule), the pair, and the rule's settings
+resolved for the pair's language (``RuleSettings.for_lang``, which the engine applies once
+per language), so a check reads ``settings.options[key]``: a dict lookup, where
+``settings.option(key, lang)`` would be a method call on the hottest loop."""
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)

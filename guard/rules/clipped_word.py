@@ -31,7 +31,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     if old_tokens[0].kind is not TokenKind.WORD or new_tokens[0].kind is not TokenKind.WORD:
         return None
     old, new = old_tokens[0].text.casefold(), new_tokens[0].text.casefold()
-    min_cut = settings.option("min-cut", ctx.lang)
+    min_cut = settings.options["min-cut"]
     assert isinstance(min_cut, int)
     cut = len(old) - len(new)
     if not new or cut < max(min_cut, 1):

@@ -47,7 +47,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
         return None
     removed = sorted((old - new).elements())
     added = sorted((new - old).elements())
-    if not removed and settings.option("allow-typo-fix", ctx.lang) and _typo_fix(ctx, rw, settings):
+    if not removed and settings.options["allow-typo-fix"] and _typo_fix(ctx, rw, settings):
         return None
     word = (removed or added)[0]
     entry = critical[word]
@@ -74,7 +74,7 @@ def _key(text: str) -> NormalizedText:
 def _typo_fix(ctx: PairContext, rw: Rewrite, settings: RuleSettings) -> bool:
     """Every source word of the rewrite is unknown to the lexicon and the ruleset."""
     old = content_tokens(rw.old_tokens)
-    below = settings.option("unknown-below", ctx.lang)
+    below = settings.options["unknown-below"]
     assert isinstance(below, float)
     return (
         ctx.lexicon is not None
@@ -85,7 +85,7 @@ def _typo_fix(ctx: PairContext, rw: Rewrite, settings: RuleSettings) -> bool:
 
 def _frequent_misspelling(ctx: PairContext, rw: Rewrite, settings: RuleSettings) -> bool:
     """One word, one edit, toward a word at least ``typo-min-gain`` Zipf more common."""
-    gain = settings.option("typo-min-gain", ctx.lang)
+    gain = settings.options["typo-min-gain"]
     assert isinstance(gain, float)
     change = one_word_change(rw)
     if gain <= 0.0 or change is None or ctx.lexicon is None or protected(ctx, change[0]):

@@ -78,10 +78,9 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
         return None
     old = (rw.old if rw.old.isalnum() else _JOINERS.sub("", rw.old)).casefold()
     new = (rw.new if rw.new.isalnum() else _JOINERS.sub("", rw.new)).casefold()
-    lang = ctx.lang
-    cost = settings.option("adjacent-cost", lang)
-    per = settings.option("letters-per-edit", lang)
-    cap = settings.option("max-distance", lang)
+    cost = settings.options["adjacent-cost"]
+    per = settings.options["letters-per-edit"]
+    cap = settings.options["max-distance"]
     assert isinstance(cost, float) and isinstance(per, int) and isinstance(cap, int)
     letters = len(old_words[0].text) if len(old_words) == 1 else max(len(t.text) for t in old_words)
     budget = min(cap, max(1, letters // max(per, 1)))

@@ -11,6 +11,8 @@ Flags: with other-languages = ["de"], "the Zeitgeist" -> "the Seitgeist".
 
 from __future__ import annotations
 
+import functools
+
 from guard.records import Action, Finding, Rewrite, Tier, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.words import zipf
@@ -19,16 +21,30 @@ from guard.ruleset.model import RuleSettings
 NAME = "foreign-word"
 
 
+@functools.lru_cache(maxsize=256)
+def _other_languages(listed: tuple[str, ...], lang: str) -> tuple[str, ...]:
+    """The listed languages other than ``lang`` (by primary subtag), each once, in order:
+    the same few answers for every rewrite, so they are kept."""
+    primary = lang.split("-", 1)[0].lower()
+    return tuple(
+        other for other in dict.fromkeys(listed) if other.split("-", 1)[0].lower() != primary
+    )
+
+
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
-    listed = ctx.ruleset.other_languages
-    if settings.option("include-ruleset-languages", ctx.lang):
-        listed = (*listed, *ctx.ruleset.languages)
-    primary = ctx.lang.split("-", 1)[0].lower()
-    others = [lang for lang in dict.fromkeys(listed) if lang.split("-", 1)[0].lower() != primary]
+    rs = ctx.ruleset
+    listed = (
+        (*rs.other_languages, *rs.languages)
+        if settings.options["include-ruleset-languages"]
+        else rs.other_languages
+    )
+    if not listed:
+        return None
+    others = _other_languages(tuple(listed), ctx.lang)
     if not others:
         return None
-    min_zipf = settings.option("min-zipf", ctx.lang)
+    min_zipf = settings.options["min-zipf"]
     assert isinstance(min_zipf, float)
     for tok in rw.old_tokens:
         if tok.kind is not TokenKind.WORD:

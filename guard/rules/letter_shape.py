@@ -43,7 +43,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
         if shape in (Shape.ALLCAPS, Shape.INTERNAL_CAP) and sum(c.isalpha() for c in tok.text) >= 2:
             action = None
         elif shape is Shape.TITLE and not _sentence_start(ctx, tok):
-            title = settings.option("title-action", ctx.lang)
+            title = settings.options["title-action"]
             if title not in ("flag", "veto"):
                 continue  # "off"
             action = Action(str(title))
@@ -72,7 +72,7 @@ def _sentence_start(ctx: PairContext, tok: Token) -> bool:
 def _is_typo_fix(
     ctx: PairContext, old: str, shape: Shape, rw: Rewrite, settings: RuleSettings
 ) -> bool:
-    below = settings.option("unknown-below", ctx.lang)
+    below = settings.options["unknown-below"]
     assert isinstance(below, float)
     if protected(ctx, old) or zipf(ctx, old) >= below:
         return False
@@ -81,12 +81,12 @@ def _is_typo_fix(
         return False
     if domain_known(ctx, new):
         return True
-    acronym = settings.option("acronym-max-letters", ctx.lang)
+    acronym = settings.options["acronym-max-letters"]
     assert isinstance(acronym, int)
     if shape is Shape.ALLCAPS and sum(c.isalpha() for c in old) <= acronym:
         return False
-    max_fix = settings.option("max-fix-distance", ctx.lang)
-    min_target = settings.option("min-target-zipf", ctx.lang)
+    max_fix = settings.options["max-fix-distance"]
+    min_target = settings.options["min-target-zipf"]
     assert isinstance(max_fix, int) and isinstance(min_target, float)
     return (
         shape_of(new) is shape and zipf(ctx, new) >= min_target and within_edits(old, new, max_fix)

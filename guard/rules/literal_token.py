@@ -52,7 +52,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
 
 def _fixes_toward_domain(ctx: PairContext, old: str, rw: Rewrite, settings: RuleSettings) -> bool:
     new = rw.new.strip()
-    below = settings.option("unknown-below", ctx.lang)
+    below = settings.options["unknown-below"]
     assert isinstance(below, float)
     return (
         bool(new)

@@ -18,7 +18,7 @@ NAME = "low-confidence"
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is None
-    min_score = settings.option("min-score", ctx.lang)
+    min_score = settings.options["min-score"]
     assert isinstance(min_score, float)
     if ctx.score is not None and ctx.rewrites and ctx.score < min_score:
         return finding(

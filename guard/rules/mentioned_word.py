@@ -54,8 +54,8 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     source = ctx.source
     # no quote mark anywhere in the source: no word of it can stand between two; and
     # an abbreviation needs a period
-    quotes = _ANY_OPENING.search(source) is not None and settings.option("quotes", ctx.lang)
-    abbreviations = "." in source and settings.option("abbreviations", ctx.lang)
+    quotes = _ANY_OPENING.search(source) is not None and settings.options["quotes"]
+    abbreviations = "." in source and settings.options["abbreviations"]
     if not quotes and not abbreviations:
         return None
     new_texts = {t.text for t in content_tokens(rw.new_tokens)}

@@ -62,7 +62,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
             kind=entry.kind,
             found=ctx.source[hit.start : hit.end],
         )
-    kinds = settings.option("flag-toward-kinds", ctx.lang)
+    kinds = settings.options["flag-toward-kinds"]
     assert isinstance(kinds, tuple)
     if kinds:
         target = ctx.ruleset.lookup_term(rw.new.strip())

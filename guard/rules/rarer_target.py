@@ -28,11 +28,13 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
         return None
     if not content_tokens(rw.old_tokens) or not content_tokens(rw.new_tokens):
         return None
-    margin = settings.option("margin", ctx.lang)
-    assert isinstance(margin, float)
     z_old = phrase_zipf(ctx, rw.old_tokens)
+    if z_old <= 0.0:
+        return None  # an unknown word (the usual typo) cannot be made rarer
+    margin = settings.options["margin"]
+    assert isinstance(margin, float)
     z_new = phrase_zipf(ctx, rw.new_tokens)
-    if z_old > 0.0 and z_new < z_old - margin:
+    if z_new < z_old - margin:
         return finding(
             NAME,
             Tier.EVIDENCE,

@@ -37,15 +37,15 @@ def _split_of_known_word(rw: Rewrite, ctx: PairContext, settings: RuleSettings) 
     if len(old) != 1 or len(content_tokens(rw.new_tokens)) < 2:
         return None
     z = zipf(ctx, old[0].text)
-    floor = settings.option("split-min-zipf", ctx.lang)
+    floor = settings.options["split-min-zipf"]
     assert isinstance(floor, float)
     return z if z >= floor else None
 
 
-def _near(rw: Rewrite, settings: RuleSettings, lang: str) -> bool:
+def _near(rw: Rewrite, settings: RuleSettings) -> bool:
     """The rewrite is within ``gain-max-distance`` edits (case-folded, optimal string
     alignment), the reach of a frequent misspelling."""
-    most = settings.option("gain-max-distance", lang)
+    most = settings.options["gain-max-distance"]
     assert isinstance(most, int)
     if most < 0:
         return True  # no limit
@@ -73,14 +73,14 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
         return None
     if not content_tokens(rw.old_tokens):
         return None
-    min_zipf = settings.option("min-zipf", ctx.lang)
-    min_gain = settings.option("min-gain", ctx.lang)
+    min_zipf = settings.options["min-zipf"]
+    min_gain = settings.options["min-gain"]
     assert isinstance(min_zipf, float) and isinstance(min_gain, float)
     z_old = phrase_zipf(ctx, rw.old_tokens)
     if z_old < min_zipf:
         return None
     z_new = phrase_zipf(ctx, rw.new_tokens) if content_tokens(rw.new_tokens) else 0.0
-    if z_new - z_old >= min_gain and _near(rw, settings, ctx.lang):
+    if z_new - z_old >= min_gain and _near(rw, settings):
         return None
     return finding(
         NAME,

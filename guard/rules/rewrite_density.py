@@ -42,9 +42,9 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     if not ctx.rewrites:
         return None
     words = ctx.source_words
-    min_words = settings.option("min-words", ctx.lang)
-    max_share = settings.option("max-share", ctx.lang)
-    max_rewrites = settings.option("max-rewrites", ctx.lang)
+    min_words = settings.options["min-words"]
+    max_share = settings.options["max-share"]
+    max_rewrites = settings.options["max-rewrites"]
     assert (
         isinstance(min_words, int)
         and isinstance(max_share, float)
@@ -52,7 +52,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     )
     if words < min_words and not (max_rewrites and len(ctx.rewrites) > max_rewrites):
         return None  # too short for a share, too few rewrites for a count
-    below = settings.option("unknown-below", ctx.lang)
+    below = settings.options["unknown-below"]
     assert isinstance(below, float)
     counted = [r for r in ctx.rewrites if not _typo_fix(r, ctx, below)]
     if not counted:

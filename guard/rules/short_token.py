@@ -23,7 +23,7 @@ NAME = "short-token"
 def _restored_letter(rw: Rewrite, ctx: PairContext, settings: RuleSettings) -> bool:
     """The rewrite adds one letter to a short word, keeping its letters in order, and
     lands on a word at least ``restored-min-zipf`` common ("qu" -> "que")."""
-    floor = settings.option("restored-min-zipf", ctx.lang)
+    floor = settings.options["restored-min-zipf"]
     assert isinstance(floor, float)
     change = one_word_change(rw)
     if floor <= 0.0 or change is None:
@@ -40,7 +40,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     assert rw is not None
     if rw.refinement is Refinement.CASE:
         return None
-    max_len = settings.option("max-length", ctx.lang)
+    max_len = settings.options["max-length"]
     assert isinstance(max_len, int)
     new_texts = {t.text for t in rw.new_tokens}
     for tok in rw.old_tokens:
