@@ -12,6 +12,7 @@ from pathlib import Path
 
 import jellyfish
 import pytest
+import wordfreq
 
 from guard.api import Guard, load_ruleset
 from guard.records import Action, Report
@@ -71,6 +72,54 @@ def test_real_word_gain_reach_is_a_setting(tmp_path: Path) -> None:
     )
     report = Guard(load_ruleset(extra)).check("check errno first", "check earn first", lang="en")
     assert actions(report, "real-word") == set()
+
+
+# compound-word: (source, proposal, lang, the word, its two listed parts, OSA distance of
+# the change, expected action). The compounds are ordinary ones of their languages
+# (common practice, no source); the parts' Zipf values are checked against wordfreq, the
+# distances against jellyfish, neither of which the rule calls.
+COMPOUND_CASES = [
+    # machine + naam: an unlisted Dutch compound moved two edits onto "machinetaal"
+    ("de machinenaam", "de machinetaal", "nl", ("machinenaam", "machinetaal"), ("machine", "naam"),
+     2, Action.VETO),
+    # Daten + verzeichnis, two letters changed
+    ("das Datenverzeichnis", "das Warenverzeichnis", "de",
+     ("Datenverzeichnis", "Warenverzeichnis"), ("daten", "verzeichnis"), 2, Action.VETO),
+    # a hyphenated compound is judged by the part that changed: waarde + paren
+    ("elk attribuut-waardeparen", "elk attribuut-waarderen", "nl",
+     ("waardeparen", "waarderen"), ("waarde", "paren"), 2, Action.VETO),
+    # one edit is left to the other rules: a slip of one letter can still read as two words
+    ("set the nodename", "set the codename", "en", ("nodename", "codename"), ("node", "name"),
+     1, None),
+    # a misspelling two edits from its word does not read as two words
+    ("see the infomraton", "see the information", "en", ("infomraton", "information"), None,
+     2, None),
+]  # fmt: skip
+
+
+@pytest.mark.parametrize(
+    ("source", "proposal", "lang", "words", "parts", "distance", "expected"),
+    COMPOUND_CASES,
+    ids=[f"{c[0]}->{c[1]}" for c in COMPOUND_CASES],
+)
+def test_compound_word_two_edits_from_an_unlisted_compound(
+    base: Guard,
+    source: str,
+    proposal: str,
+    lang: str,
+    words: tuple[str, str],
+    parts: tuple[str, str] | None,
+    distance: int,
+    expected: Action | None,
+) -> None:
+    old, new = words
+    assert jellyfish.damerau_levenshtein_distance(old.casefold(), new.casefold()) == distance
+    assert wordfreq.zipf_frequency(old, lang) < 1.0  # unlisted
+    if parts is not None:
+        assert "".join(parts) == old.casefold()
+        assert all(wordfreq.zipf_frequency(p, lang) >= 3.0 for p in parts)
+    got = actions(base.check(source, proposal, lang=lang), "compound-word")
+    assert got == (set() if expected is None else {expected})
 
 
 # (source, proposal, expected rewrite-density action)
