@@ -1,18 +1,18 @@
 """compound-word: a word no lexicon lists, made of two listed words, moved two edits or more.
 
-German and Dutch write compounds as one word ("machinenaam", "Datenverzeichnis") and
-program text joins words the same way in every language ("filenode", "nodename"); no
-word list holds them all, so a general speller takes an unlisted compound for a typo and
-moves it onto a listed word ("machinenaam" -> "machinetaal"). A misspelling that needs
-two edits to undo is seldom that tidy: its letters no longer fall apart into two words
-of at least ``min-part-letters`` letters that the lexicon lists at Zipf
-``min-part-zipf`` or more. So an unknown word (Zipf under ``unknown-below``) that does,
-changed by ``min-distance`` edits or more (optimal string alignment, case folded), is a
-compound the speller did not know. One-edit fixes are left to the other rules: a slip
-of one letter ("Passswort") can still read as two words. Hyphenated compounds are judged
-by the part that changed ("attribuut-waardeparen" -> "attribuut-waarderen").
+German and Dutch write compounds as one word ("Schriftliste", "kolomnaam") and program
+text joins words the same way in every language ("userlist", "taskname"); no word list
+holds them all, so a general speller takes an unlisted compound for a typo and moves it
+onto a listed word ("userlist" -> "setlist"). A misspelling that needs two edits to undo
+is seldom that tidy: its letters no longer fall apart into two words of at least
+``min-part-letters`` letters that the lexicon lists at Zipf ``min-part-zipf`` or more.
+So an unknown word (Zipf under ``unknown-below``) that does, changed by ``min-distance``
+edits or more (optimal string alignment, case folded), is a compound the speller did not
+know. One-edit fixes are left to the other rules: a slip of one letter ("taskname" ->
+"taskgame") can still read as two words. Hyphenated compounds are judged by the part
+that changed ("CSV-userlist" -> "CSV-setlist").
 
-Accepts: "recieve" -> "receive". Vetoes: "machinenaam" -> "machinetaal" (nl).
+Accepts: "recieve" -> "receive". Vetoes: "userlist" -> "setlist" (user + list).
 """
 
 from __future__ import annotations
@@ -21,8 +21,7 @@ import regex
 
 from guard.records import Action, Finding, Rewrite, Tier, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import content_tokens, within_edits
-from guard.ruleset.lexicon import Lexicon
+from guard.rules.words import compound_parts, content_tokens, within_edits
 from guard.ruleset.model import RuleSettings
 
 NAME = "compound-word"
@@ -36,15 +35,6 @@ def _changed_parts(old: str, new: str) -> list[tuple[str, str]]:
     if len(old_parts) != len(new_parts):
         return [(old, new)]
     return [(a, b) for a, b in zip(old_parts, new_parts, strict=True) if a != b]
-
-
-def _split(lex: Lexicon, word: str, least: int, floor: float) -> tuple[str, str] | None:
-    """The first cut of ``word`` into two listed words of ``least`` letters or more."""
-    for i in range(least, len(word) - least + 1):
-        tail = word[i:]
-        if lex.zipf(tail) >= floor and lex.zipf(word[:i]) >= floor:
-            return word[:i], tail
-    return None
 
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
@@ -64,11 +54,11 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     assert isinstance(least, int) and isinstance(reach, int)
     assert isinstance(floor, float) and isinstance(below, float)
     for old, new in _changed_parts(old_tokens[0].text, new_tokens[0].text):
-        if len(old) < 2 * least or not old.isalpha() or within_edits(old, new, reach - 1):
+        if len(old) < 2 * least or within_edits(old, new, reach - 1):
             continue
         if lex.zipf(old) >= below:
             continue
-        parts = _split(lex, old, least, floor)
+        parts = compound_parts(lex, old, least, floor)
         if parts is None:
             continue
         return finding(

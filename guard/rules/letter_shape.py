@@ -4,7 +4,10 @@ capitalised word inside a sentence (a likely name) is flagged (``title-action``)
 Both yield to direction evidence: when no lexicon and no term list knows the source token
 and the speller moves it onto a protected term, or onto a word the lexicon knows that has
 the same letter shape and lies within ``max-fix-distance`` edits, the speller is fixing a
-typo ("HTTTP" -> "HTTP"), not erasing a deliberate token. Capitals of at most
+typo ("HTTTP" -> "HTTP"), not erasing a deliberate token. Where ``compound-part-letters``
+is set, a word that reads as two listed words counts as known, unless the source reads so
+too: German writes compound nouns as one word and no list holds them all ("Ordnerinhlat"
+-> "Ordnerinhalt", Ordner + Inhalt). Capitals of at most
 ``acronym-max-letters`` letters get that exemption only toward a protected term: so short
 a capitalised token is an acronym ("UID", "LTS"), and one changed letter makes it
 another acronym or a common word in capitals ("UND"), never a fixed typo of one.
@@ -19,6 +22,7 @@ from guard.records import Action, Finding, Rewrite, Tier, Token, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.words import (
     UNKNOWN_BELOW,
+    compound_parts,
     content_tokens,
     domain_known,
     protected,
@@ -88,9 +92,20 @@ def _is_typo_fix(
     max_fix = settings.option("max-fix-distance", ctx.lang)
     min_target = settings.option("min-target-zipf", ctx.lang)
     assert isinstance(max_fix, int) and isinstance(min_target, float)
-    return (
-        shape_of(new) is shape and zipf(ctx, new) >= min_target and within_edits(old, new, max_fix)
-    )
+    if shape_of(new) is not shape or not within_edits(old, new, max_fix):
+        return False
+    if zipf(ctx, new) >= min_target:
+        return True
+    # a compound moved onto another ("Tastenfolgen" -> "Tastenfolien") is no typo fixed
+    return _compound(ctx, new, settings) and not _compound(ctx, old, settings)
+
+
+def _compound(ctx: PairContext, word: str, settings: RuleSettings) -> bool:
+    """``word`` reads as two listed words: a compound no word list holds ("Ordnerinhalt")."""
+    least = settings.option("compound-part-letters", ctx.lang)
+    floor = settings.option("compound-part-zipf", ctx.lang)
+    assert isinstance(least, int) and isinstance(floor, float)
+    return ctx.lexicon is not None and compound_parts(ctx.lexicon, word, least, floor) is not None
 
 
 RULE = Rule(
@@ -119,6 +134,19 @@ RULE = Rule(
             type=int,
             doc="capitals this short are acronyms: moved onto anything but a protected "
             "term, they are never a typo fix (0: no such length)",
+            per_lang=True,
+        ),
+        "compound-part-letters": OptionSpec(
+            default=0,
+            type=int,
+            doc="a typo fix may also land on an unlisted word that reads as two listed words "
+            "of at least this many letters (a compound; 0: never)",
+            per_lang=True,
+        ),
+        "compound-part-zipf": OptionSpec(
+            default=3.0,
+            type=float,
+            doc="Zipf each of those two words must reach",
             per_lang=True,
         ),
         "max-fix-distance": OptionSpec(
