@@ -17,24 +17,12 @@ Accepts: "recieve" -> "receive". Vetoes: "userlist" -> "setlist" (user + list).
 
 from __future__ import annotations
 
-import regex
-
 from guard.records import Action, Finding, Rewrite, Tier, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import compound_parts, content_tokens, within_edits
+from guard.rules.words import changed_parts, compound_parts, content_tokens, within_edits
 from guard.ruleset.model import RuleSettings
 
 NAME = "compound-word"
-_HYPHENS = regex.compile(r"[\-‐‑]")
-
-
-def _changed_parts(old: str, new: str) -> list[tuple[str, str]]:
-    """The hyphen-separated parts that differ, paired; the whole words when the parts do
-    not pair up."""
-    old_parts, new_parts = _HYPHENS.split(old), _HYPHENS.split(new)
-    if len(old_parts) != len(new_parts):
-        return [(old, new)]
-    return [(a, b) for a, b in zip(old_parts, new_parts, strict=True) if a != b]
 
 
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
@@ -53,7 +41,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     reach = settings.option("min-distance", lang)
     assert isinstance(least, int) and isinstance(reach, int)
     assert isinstance(floor, float) and isinstance(below, float)
-    for old, new in _changed_parts(old_tokens[0].text, new_tokens[0].text):
+    for old, new in changed_parts(old_tokens[0].text, new_tokens[0].text):
         if len(old) < 2 * least or within_edits(old, new, reach - 1):
             continue
         if lex.zipf(old) >= below:

@@ -10,7 +10,10 @@ too: German writes compound nouns as one word and no list holds them all ("Ordne
 -> "Ordnerinhalt", Ordner + Inhalt). Capitals of at most
 ``acronym-max-letters`` letters get that exemption only toward a protected term: so short
 a capitalised token is an acronym ("UID", "LTS"), and one changed letter makes it
-another acronym or a common word in capitals ("UND"), never a fixed typo of one.
+another acronym or a common word in capitals ("UND"), never a fixed typo of one. With
+``hyphen-part-acronyms``, so is a part in capitals of a hyphenated word that has lower
+case too ("SVGZ-Bild", "USB-Stick"), whatever its length: German and Dutch join an
+abbreviation to a word with a hyphen.
 
 Accepts: "HTTTP server" -> "HTTP server"; "teh" -> "the".
 Vetoes: "NASA" -> "Nasa"; "JSON" -> "Jason". Flags: "met Mrs Kowalczyk" -> "met Mrs Kowalski".
@@ -22,6 +25,7 @@ from guard.records import Action, Finding, Rewrite, Tier, Token, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.words import (
     UNKNOWN_BELOW,
+    changed_parts,
     compound_parts,
     content_tokens,
     domain_known,
@@ -89,6 +93,8 @@ def _is_typo_fix(
     assert isinstance(acronym, int)
     if shape is Shape.ALLCAPS and sum(c.isalpha() for c in old) <= acronym:
         return False
+    if shape is Shape.INTERNAL_CAP and _acronym_part_changed(old, new, ctx.lang, settings):
+        return False
     max_fix = settings.option("max-fix-distance", ctx.lang)
     min_target = settings.option("min-target-zipf", ctx.lang)
     assert isinstance(max_fix, int) and isinstance(min_target, float)
@@ -98,6 +104,15 @@ def _is_typo_fix(
         return True
     # a compound moved onto another ("Tastenfolgen" -> "Tastenfolien") is no typo fixed
     return _compound(ctx, new, settings) and not _compound(ctx, old, settings)
+
+
+def _acronym_part_changed(old: str, new: str, lang: str, settings: RuleSettings) -> bool:
+    """A part in capitals of a hyphenated compound changed ("SVGZ-Bild" -> "SVG-Bild"):
+    joined by a hyphen to a word in lower case, capitals are an acronym, whatever their
+    length, and one changed letter makes them another."""
+    if not settings.option("hyphen-part-acronyms", lang):
+        return False
+    return any(shape_of(part) is Shape.ALLCAPS for part, _ in changed_parts(old, new))
 
 
 def _compound(ctx: PairContext, word: str, settings: RuleSettings) -> bool:
@@ -134,6 +149,14 @@ RULE = Rule(
             type=int,
             doc="capitals this short are acronyms: moved onto anything but a protected "
             "term, they are never a typo fix (0: no such length)",
+            per_lang=True,
+        ),
+        "hyphen-part-acronyms": OptionSpec(
+            default=True,
+            type=bool,
+            doc='a part in capitals of a hyphenated word with lower-case letters ("USB-Stick") '
+            "is an acronym of any length: moved onto anything but a protected term, it is "
+            "never a typo fix",
             per_lang=True,
         ),
         "compound-part-letters": OptionSpec(

@@ -33,6 +33,7 @@ _NOT_WORDS = frozenset({TokenKind.SPACE, TokenKind.PUNCT, TokenKind.SYMBOL})
 _APOSTROPHES = regex.compile(r"['’]")
 _JOINERS = regex.compile(r"['’\-‐‑]")
 _LETTER = regex.compile(r"\p{L}")
+_HYPHENS = regex.compile(r"[\-‐‑]")
 
 
 def content_tokens(tokens: tuple[Token, ...]) -> tuple[Token, ...]:
@@ -73,6 +74,19 @@ def within_edits(old: str, new: str, most: int) -> bool:
     (True, False)
     """
     return OSA.distance(old.casefold(), new.casefold(), score_cutoff=most) <= most
+
+
+def changed_parts(old: str, new: str) -> list[tuple[str, str]]:
+    """The parts of a hyphenated word that a change touched, paired with what they became;
+    the whole words when the parts do not pair up.
+
+    >>> changed_parts("CSV-userlist", "CSV-setlist"), changed_parts("e-mail", "email")
+    ([('userlist', 'setlist')], [('e-mail', 'email')])
+    """
+    old_parts, new_parts = _HYPHENS.split(old), _HYPHENS.split(new)
+    if len(old_parts) != len(new_parts):
+        return [(old, new)]
+    return [(a, b) for a, b in zip(old_parts, new_parts, strict=True) if a != b]
 
 
 def compound_parts(lex: Lexicon, word: str, least: int, floor: float) -> tuple[str, str] | None:

@@ -169,6 +169,13 @@ WORD_CASES = [
     ("letter-shape", "Ihre UID passt nicht", "Ihre UND passt nicht", "de", Action.VETO),
     ("letter-shape", "with a different UID", "with a different DID", "en", Action.VETO),
     ("letter-shape", "--user UESR only", "--user USER only", "en", None),
+    # German and Dutch join an abbreviation to a word with a hyphen (German official
+    # spelling rules, section on the hyphen; from memory): capitals joined to a word in
+    # lower case are an acronym of any length. "SVGZ" (compressed SVG) cut to "SVG" is
+    # another format; a typo in the word part is still fixed. wordfreq lists neither
+    # "svgz" nor "bidl" (Zipf 0).
+    ("letter-shape", "Das SVGZ-Bild fehlt", "Das SVG-Bild fehlt", "de", Action.VETO),
+    ("letter-shape", "Das SVG-Bidl fehlt", "Das SVG-Bild fehlt", "de", None),
     # German writes compound nouns as one word (common practice, no source), and wordfreq
     # lists neither "Ordnerinhalt" nor "Netzwerkname" (Zipf 0); each reads as two words it
     # lists at Zipf 3.8 and up (Ordner + Inhalt, Netzwerk + Name): a typo fixed onto one is
