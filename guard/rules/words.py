@@ -83,6 +83,8 @@ def changed_parts(old: str, new: str) -> list[tuple[str, str]]:
     >>> changed_parts("CSV-userlist", "CSV-setlist"), changed_parts("e-mail", "email")
     ([('userlist', 'setlist')], [('e-mail', 'email')])
     """
+    if old.isalpha():  # most words: no hyphen to split at
+        return [(old, new)] if old != new else []
     old_parts, new_parts = _HYPHENS.split(old), _HYPHENS.split(new)
     if len(old_parts) != len(new_parts):
         return [(old, new)]
