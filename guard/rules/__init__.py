@@ -12,6 +12,7 @@ from types import MappingProxyType
 from guard.rules import (
     blocked_pair,
     clipped_word,
+    compound_word,
     critical_word,
     edit_budget,
     foreign_word,
@@ -49,6 +50,7 @@ REGISTRY: Mapping[str, Rule] = MappingProxyType(
             edit_budget,
             real_word,
             clipped_word,
+            compound_word,
             mentioned_word,
             rarer_target,
             unknown_target,

@@ -4,10 +4,16 @@ capitalised word inside a sentence (a likely name) is flagged (``title-action``)
 Both yield to direction evidence: when no lexicon and no term list knows the source token
 and the speller moves it onto a protected term, or onto a word the lexicon knows that has
 the same letter shape and lies within ``max-fix-distance`` edits, the speller is fixing a
-typo ("HTTTP" -> "HTTP"), not erasing a deliberate token. Capitals of at most
+typo ("HTTTP" -> "HTTP"), not erasing a deliberate token. Where ``compound-part-letters``
+is set, a word that reads as two listed words counts as known, unless the source reads so
+too: German writes compound nouns as one word and no list holds them all ("Ordnerinhlat"
+-> "Ordnerinhalt", Ordner + Inhalt). Capitals of at most
 ``acronym-max-letters`` letters get that exemption only toward a protected term: so short
 a capitalised token is an acronym ("UID", "LTS"), and one changed letter makes it
-another acronym or a common word in capitals ("UND"), never a fixed typo of one.
+another acronym or a common word in capitals ("UND"), never a fixed typo of one. With
+``hyphen-part-acronyms``, so is a part in capitals of a hyphenated word that has lower
+case too ("SVGZ-Bild", "USB-Stick"), whatever its length: German and Dutch join an
+abbreviation to a word with a hyphen.
 
 Accepts: "HTTTP server" -> "HTTP server"; "teh" -> "the".
 Vetoes: "NASA" -> "Nasa"; "JSON" -> "Jason". Flags: "met Mrs Kowalczyk" -> "met Mrs Kowalski".
@@ -19,6 +25,8 @@ from guard.records import Action, Finding, Rewrite, Tier, Token, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.words import (
     UNKNOWN_BELOW,
+    changed_parts,
+    compound_parts,
     content_tokens,
     domain_known,
     protected,
@@ -85,12 +93,34 @@ def _is_typo_fix(
     assert isinstance(acronym, int)
     if shape is Shape.ALLCAPS and sum(c.isalpha() for c in old) <= acronym:
         return False
+    if shape is Shape.INTERNAL_CAP and _acronym_part_changed(old, new, settings):
+        return False
     max_fix = settings.options["max-fix-distance"]
     min_target = settings.options["min-target-zipf"]
     assert isinstance(max_fix, int) and isinstance(min_target, float)
-    return (
-        shape_of(new) is shape and zipf(ctx, new) >= min_target and within_edits(old, new, max_fix)
-    )
+    if shape_of(new) is not shape or not within_edits(old, new, max_fix):
+        return False
+    if zipf(ctx, new) >= min_target:
+        return True
+    # a compound moved onto another ("Tastenfolgen" -> "Tastenfolien") is no typo fixed
+    return _compound(ctx, new, settings) and not _compound(ctx, old, settings)
+
+
+def _acronym_part_changed(old: str, new: str, settings: RuleSettings) -> bool:
+    """A part in capitals of a hyphenated compound changed ("SVGZ-Bild" -> "SVG-Bild"):
+    joined by a hyphen to a word in lower case, capitals are an acronym, whatever their
+    length, and one changed letter makes them another."""
+    if not settings.options["hyphen-part-acronyms"]:
+        return False
+    return any(shape_of(part) is Shape.ALLCAPS for part, _ in changed_parts(old, new))
+
+
+def _compound(ctx: PairContext, word: str, settings: RuleSettings) -> bool:
+    """``word`` reads as two listed words: a compound no word list holds ("Ordnerinhalt")."""
+    least = settings.options["compound-part-letters"]
+    floor = settings.options["compound-part-zipf"]
+    assert isinstance(least, int) and isinstance(floor, float)
+    return ctx.lexicon is not None and compound_parts(ctx.lexicon, word, least, floor) is not None
 
 
 RULE = Rule(
@@ -119,6 +149,27 @@ RULE = Rule(
             type=int,
             doc="capitals this short are acronyms: moved onto anything but a protected "
             "term, they are never a typo fix (0: no such length)",
+            per_lang=True,
+        ),
+        "hyphen-part-acronyms": OptionSpec(
+            default=True,
+            type=bool,
+            doc='a part in capitals of a hyphenated word with lower-case letters ("USB-Stick") '
+            "is an acronym of any length: moved onto anything but a protected term, it is "
+            "never a typo fix",
+            per_lang=True,
+        ),
+        "compound-part-letters": OptionSpec(
+            default=0,
+            type=int,
+            doc="a typo fix may also land on an unlisted word that reads as two listed words "
+            "of at least this many letters (a compound; 0: never)",
+            per_lang=True,
+        ),
+        "compound-part-zipf": OptionSpec(
+            default=3.0,
+            type=float,
+            doc="Zipf each of those two words must reach",
             per_lang=True,
         ),
         "max-fix-distance": OptionSpec(

@@ -6,11 +6,16 @@ Pure helpers over the pair context; no rule logic lives here.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import regex
 from rapidfuzz.distance import OSA
 
 from guard.records import Rewrite, Token, TokenKind
 from guard.rules.base import OptionSpec, PairContext
+
+if TYPE_CHECKING:
+    from guard.ruleset.lexicon import Lexicon
 
 PATTERN_TIMEOUT_S = 0.05
 """Time limit for one ruleset pattern on one text (the `regex` module enforces it)."""
@@ -28,6 +33,7 @@ _NOT_WORDS = frozenset({TokenKind.SPACE, TokenKind.PUNCT, TokenKind.SYMBOL})
 _APOSTROPHES = regex.compile(r"['’]")
 _JOINERS = regex.compile(r"['’\-‐‑]")
 _LETTER = regex.compile(r"\p{L}")
+_HYPHENS = regex.compile(r"[\-‐‑]")
 
 
 def content_tokens(tokens: tuple[Token, ...]) -> tuple[Token, ...]:
@@ -68,6 +74,40 @@ def within_edits(old: str, new: str, most: int) -> bool:
     (True, False)
     """
     return OSA.distance(old.casefold(), new.casefold(), score_cutoff=most) <= most
+
+
+def changed_parts(old: str, new: str) -> list[tuple[str, str]]:
+    """The parts of a hyphenated word that a change touched, paired with what they became;
+    the whole words when the parts do not pair up.
+
+    >>> changed_parts("CSV-userlist", "CSV-setlist"), changed_parts("e-mail", "email")
+    ([('userlist', 'setlist')], [('e-mail', 'email')])
+    """
+    if old.isalpha():  # most words: no hyphen to split at
+        return [(old, new)] if old != new else []
+    old_parts, new_parts = _HYPHENS.split(old), _HYPHENS.split(new)
+    if len(old_parts) != len(new_parts):
+        return [(old, new)]
+    return [(a, b) for a, b in zip(old_parts, new_parts, strict=True) if a != b]
+
+
+def compound_parts(lex: Lexicon, word: str, least: int, floor: float) -> tuple[str, str] | None:
+    """The first cut of ``word`` into two words of ``least`` letters or more that the
+    lexicon lists at Zipf ``floor`` or more: how an unlisted compound reads. None when
+    there is none (or ``least`` is 0: no compound reading).
+
+    >>> from guard.ruleset.lexicon import Lexicon
+    >>> lex = Lexicon.from_words("xx", {"file": 425, "node": 512, "no": 300})
+    >>> compound_parts(lex, "filenode", 3, 3.0), compound_parts(lex, "nodeno", 3, 3.0)
+    (('file', 'node'), None)
+    """
+    if least < 1 or not word.isalpha():
+        return None
+    for i in range(least, len(word) - least + 1):
+        tail = word[i:]
+        if lex.zipf(tail) >= floor and lex.zipf(word[:i]) >= floor:
+            return word[:i], tail
+    return None
 
 
 def zipf(ctx: PairContext, word: str) -> float:

@@ -84,6 +84,8 @@ CASES = [
     ("real-word", "load the kernel", "load the kennel", "en", None, Action.VETO),
     ("clipped-word", "we recieve it", "we receive it", "en", None, None),
     ("clipped-word", "reindex the table", "index the table", "en", None, Action.VETO),
+    ("compound-word", "we recieve it", "we receive it", "en", None, None),
+    ("compound-word", "load the userlist", "load the setlist", "en", None, Action.VETO),
     ("mentioned-word", "we recieve it. Then", "we receive it. Then", "en", None, None),
     ("mentioned-word", "run 'mandb' again", "run 'mand' again", "en", None, Action.VETO),
     ("rarer-target", "we recieve it", "we receive it", "en", None, None),

@@ -12,6 +12,7 @@ from pathlib import Path
 
 import jellyfish
 import pytest
+import wordfreq
 
 from guard.api import Guard, load_ruleset
 from guard.records import Action, Report
@@ -73,6 +74,54 @@ def test_real_word_gain_reach_is_a_setting(tmp_path: Path) -> None:
     assert actions(report, "real-word") == set()
 
 
+# compound-word: (source, proposal, lang, the word, its two listed parts, OSA distance of
+# the change, expected action). The compounds are ordinary ones of their languages
+# (common practice, no source); the parts' Zipf values are checked against wordfreq, the
+# distances against jellyfish, neither of which the rule calls.
+COMPOUND_CASES = [
+    # user + list: an unlisted compound moved two edits onto "setlist"
+    ("load the userlist", "load the setlist", "en", ("userlist", "setlist"), ("user", "list"),
+     2, Action.VETO),
+    # Schrift + Liste, two letters changed (and a capital lost: case is folded)
+    ("die Schriftliste", "die schriftliche", "de", ("Schriftliste", "schriftliche"),
+     ("schrift", "liste"), 2, Action.VETO),
+    # a hyphenated compound is judged by the part that changed
+    ("the CSV-userlist", "the CSV-setlist", "en", ("userlist", "setlist"), ("user", "list"),
+     2, Action.VETO),
+    # one edit is left to the other rules: a slip of one letter can still read as two words
+    ("set the taskname", "set the taskgame", "en", ("taskname", "taskgame"), ("task", "name"),
+     1, None),
+    # a misspelling two edits from its word does not read as two words
+    ("see the infomraton", "see the information", "en", ("infomraton", "information"), None,
+     2, None),
+]  # fmt: skip
+
+
+@pytest.mark.parametrize(
+    ("source", "proposal", "lang", "words", "parts", "distance", "expected"),
+    COMPOUND_CASES,
+    ids=[f"{c[0]}->{c[1]}" for c in COMPOUND_CASES],
+)
+def test_compound_word_two_edits_from_an_unlisted_compound(
+    base: Guard,
+    source: str,
+    proposal: str,
+    lang: str,
+    words: tuple[str, str],
+    parts: tuple[str, str] | None,
+    distance: int,
+    expected: Action | None,
+) -> None:
+    old, new = words
+    assert jellyfish.damerau_levenshtein_distance(old.casefold(), new.casefold()) == distance
+    assert wordfreq.zipf_frequency(old, lang) < 1.0  # unlisted
+    if parts is not None:
+        assert "".join(parts) == old.casefold()
+        assert all(wordfreq.zipf_frequency(p, lang) >= 3.0 for p in parts)
+    got = actions(base.check(source, proposal, lang=lang), "compound-word")
+    assert got == (set() if expected is None else {expected})
+
+
 # (source, proposal, expected rewrite-density action)
 DENSITY_CASES = [
     # Every word a slip, each an unlisted word one edit from a listed one (wordfreq Zipf 0
@@ -120,6 +169,19 @@ WORD_CASES = [
     ("letter-shape", "Ihre UID passt nicht", "Ihre UND passt nicht", "de", Action.VETO),
     ("letter-shape", "with a different UID", "with a different DID", "en", Action.VETO),
     ("letter-shape", "--user UESR only", "--user USER only", "en", None),
+    # German and Dutch join an abbreviation to a word with a hyphen (German official
+    # spelling rules, section on the hyphen; from memory): capitals joined to a word in
+    # lower case are an acronym of any length. "SVGZ" (compressed SVG) cut to "SVG" is
+    # another format; a typo in the word part is still fixed. wordfreq lists neither
+    # "svgz" nor "bidl" (Zipf 0).
+    ("letter-shape", "Das SVGZ-Bild fehlt", "Das SVG-Bild fehlt", "de", Action.VETO),
+    ("letter-shape", "Das SVG-Bidl fehlt", "Das SVG-Bild fehlt", "de", None),
+    # German writes compound nouns as one word (common practice, no source), and wordfreq
+    # lists neither "Ordnerinhalt" nor "Netzwerkname" (Zipf 0); each reads as two words it
+    # lists at Zipf 3.8 and up (Ordner + Inhalt, Netzwerk + Name): a typo fixed onto one is
+    # a fix, an unlisted compound moved onto another is not.
+    ("letter-shape", "Der Ordnerinhlat fehlt", "Der Ordnerinhalt fehlt", "de", None),
+    ("letter-shape", "Der Netzwerkname fehlt", "Der Netzwerknase fehlt", "de", Action.VETO),
     ("clipped-word", "reindex the table", "index the table", "en", Action.VETO),  # "re" cut
     ("clipped-word", "no opcode here", "no code here", "en", Action.VETO),  # "op" cut
     ("clipped-word", "the Druckbereichen list", "the Druckbereich list", "de", Action.VETO),
