@@ -210,8 +210,11 @@ def spans(text: str) -> tuple[Span, ...]:
      (4, 6, <TokenKind.WORD: 'word'>), (6, 7, <TokenKind.SPACE: 'space'>),
      (7, 12, <TokenKind.NUMBER: 'number'>))
     """
-    if text.isascii() and (text.replace(" ", "").isalpha() or _SIMPLE.fullmatch(text)):
-        return _plain_spans(text)
+    if text.isascii():
+        if text.isalpha():  # one plain word: the window of most fixes
+            return ((0, len(text), _plain_kind(text)),)
+        if text.replace(" ", "").isalpha() or _SIMPLE.fullmatch(text):
+            return _plain_spans(text)
     if len(text) <= _CACHED_LENGTH:
         return _cached_spans(text)
     return _scan(text)
