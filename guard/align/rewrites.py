@@ -186,8 +186,10 @@ def _regions(
     for blocks in groups:
         i1, j1 = blocks[0][0], blocks[0][2]
         i2, j2 = blocks[-1][1], blocks[-1][3]
-        if _may_split_or_join(blocks, a_space, b_space) and (
-            (i2 - i1) * (j2 - j1) <= _REALIGN_LIMIT
+        if (
+            _may_split_or_join(blocks, a_space, b_space)
+            and not _one_region(a, b, blocks)
+            and (i2 - i1) * (j2 - j1) <= _REALIGN_LIMIT
         ):
             out.extend(_realign(a, b, a_space, b_space, i1, i2, j1, j2))
         else:  # rapidfuzz's blocks are already the rewrites
@@ -217,6 +219,23 @@ def _may_split_or_join(
         return True  # the gaps between blocks are whitespace
     i1, i2, j1, j2 = blocks[0]
     return any(a_space[i1:i2]) or any(b_space[j1:j2])
+
+
+def _one_region(a: Sequence[str], b: Sequence[str], blocks: Sequence[Sequence[int]]) -> bool:
+    """Whether realigning would give back the group's one block whole: a join or split
+    ("colleges that" -> "collegesthat"), where one side is one token that the other side
+    does not hold. Realignment cuts a block only at tokens it finds equal on both sides
+    (none: every step is a change) or between two word-for-word fixes (one token on a side
+    allows one), so its path is one region. A property test compares the two.
+    """
+    if len(blocks) != 1:
+        return False
+    i1, i2, j1, j2 = blocks[0]
+    if i2 - i1 == 1:
+        return a[i1] not in b[j1:j2]
+    if j2 - j1 == 1:
+        return b[j1] not in a[i1:i2]
+    return False
 
 
 def _realign(

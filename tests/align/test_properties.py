@@ -18,7 +18,7 @@ from hypothesis import strategies as st
 
 from guard.align import align, apply
 from guard.align import rewrites as rewrites_module
-from guard.records import Refinement, RewriteKind
+from guard.records import Refinement, RewriteKind, TokenKind
 from guard.text.tokenize import spans, tokenize
 
 PIECES = [
@@ -234,3 +234,49 @@ def test_word_for_word_shortcut_matches_the_general_path(pair: tuple[str, str]) 
     )
     if fast is not None:
         assert fast == rewrites_module._by_opcodes(source, proposal, start, a, b)
+
+
+@settings(max_examples=3000, deadline=None)
+@given(pairs(), st.data())
+def test_a_lone_token_block_is_what_realignment_gives(
+    pair: tuple[str, str], data: st.DataObject
+) -> None:
+    # _one_region skips realigning a block with one token on one side that the other side
+    # lacks (its docstring argues realignment returns that block whole); this checks it.
+    source, proposal = pair
+    a_spans, b_spans = spans(source), spans(proposal)
+    a = [source[s:e] for s, e, _ in a_spans]
+    b = [proposal[s:e] for s, e, _ in b_spans]
+    if not a or not b:
+        return
+    i1 = data.draw(st.integers(0, len(a) - 1))
+    j1 = data.draw(st.integers(0, len(b) - 1))
+    i2 = data.draw(st.integers(i1 + 1, min(len(a), i1 + 6)))
+    j2 = data.draw(st.integers(j1 + 1, min(len(b), j1 + 6)))
+    blocks = [[i1, i2, j1, j2]]
+    if rewrites_module._one_region(a, b, blocks):
+        a_space = [k is TokenKind.SPACE for _, _, k in a_spans]
+        b_space = [k is TokenKind.SPACE for _, _, k in b_spans]
+        assert rewrites_module._realign(a, b, a_space, b_space, i1, i2, j1, j2) == [
+            (i1, i2, j1, j2)
+        ]
+
+
+@settings(max_examples=1000, deadline=None)
+@given(WORDS, st.data())
+def test_joins_of_any_length_are_one_region(words: list[str], data: st.DataObject) -> None:
+    # the common case of the shortcut above: words joined (or split back), maybe with a typo
+    i = data.draw(st.integers(0, len(words) - 2))
+    k = data.draw(st.integers(2, min(4, len(words) - i)))
+    joined = "".join(words[i : i + k]) + data.draw(st.sampled_from(["", "x"]))
+    a = [t for w in words for t in (w, " ")][:-1]
+    b = [t for w in [*words[:i], joined, *words[i + k :]] for t in (w, " ")][:-1]
+    a_space = [t == " " for t in a]
+    b_space = [t == " " for t in b]
+    block = [[2 * i, 2 * (i + k) - 1, 2 * i, 2 * i + 1]]
+    for x, y, xs, ys, blk in (
+        (a, b, a_space, b_space, block[0]),
+        (b, a, b_space, a_space, [block[0][2], block[0][3], block[0][0], block[0][1]]),
+    ):
+        if rewrites_module._one_region(x, y, [blk]):
+            assert rewrites_module._realign(x, y, xs, ys, *blk) == [tuple(blk)]
