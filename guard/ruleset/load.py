@@ -17,6 +17,7 @@ folder as plain, hash-checked data (``_TermListCache``), never as pickles.
 
 from __future__ import annotations
 
+import contextlib
 import difflib
 import hashlib
 import importlib
@@ -974,6 +975,9 @@ class _TermListCache:
 
     MIN_LINES = 5_000
     FORMAT = "guard-terms 2"
+    KEEP = 16
+    """Term-list files kept in the cache folder: each edit of a large list makes a new
+    one, so writing one deletes all but the most recently used ``KEEP``."""
 
     def __init__(self, data: bytes, fold: bool, limits: Limits) -> None:
         from guard.ruleset.lexicon import cache_dir
@@ -991,9 +995,12 @@ class _TermListCache:
 
         if self.folder is None:
             return None
-        got = read_private(self.folder / self.name, self.FORMAT)
+        file = self.folder / self.name
+        got = read_private(file, self.FORMAT)
         if got is None:
             return None
+        with contextlib.suppress(OSError):
+            os.utime(file)  # used now: the last file pruning would delete
         fields, body = got
         if len(fields) != 5 or not all(f.isdigit() for f in fields):
             return None
@@ -1047,6 +1054,21 @@ class _TermListCache:
         body += (text_terms + text_keys + text_heads).encode("utf-8")
         fields = [len(terms), len(heads), len(text_terms), len(text_keys), len(text_heads)]
         write_private(self.folder / self.name, self.FORMAT, [str(f) for f in fields], body)
+        _prune(self.folder, "terms-*.txt", self.KEEP)
+
+
+def _prune(folder: Path, pattern: str, keep: int) -> None:
+    """Delete all but the ``keep`` most recently used (modified) files of ``pattern`` in
+    ``folder``: term-list files of lists since edited, or of an older format, are never read
+    again. Errors are ignored, as a cache that cannot be pruned only costs disk."""
+    dated: list[tuple[float, Path]] = []
+    for file in folder.glob(pattern):
+        with contextlib.suppress(OSError):
+            dated.append((file.lstat().st_mtime, file))
+    dated.sort(reverse=True)
+    for _, file in dated[keep:]:
+        with contextlib.suppress(OSError):
+            file.unlink()
 
 
 # ------------------------------------------------------------------ the chain

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import hashlib
+import os
 from collections.abc import Callable, Mapping
 from pathlib import Path
 
@@ -10,7 +11,7 @@ import pytest
 
 from guard.errors import RulesetError
 from guard.rules.base import Rule
-from guard.ruleset.load import ResolvedRuleset, load_sources
+from guard.ruleset.load import ResolvedRuleset, _TermListCache, load_sources
 from guard.ruleset.terms import TermMatcher
 
 Write = Callable[[dict[str, str | bytes]], Path]
@@ -94,3 +95,26 @@ def test_a_cache_file_that_says_more_than_it_holds_is_not_used(
     fields[-1] = hashlib.sha256(short).hexdigest().encode()
     cached.write_bytes(b" ".join(fields) + b"\n" + short)
     assert list(load_sources([root / "r"], registry=registry).terms) == list(first.terms)
+
+
+def test_old_list_files_are_pruned_to_the_most_recently_used(
+    write: Write, registry: Mapping[str, Rule], private_cache: Path
+) -> None:
+    # Each edit of a large list makes a new cache file; the folder must not grow forever
+    # (common practice for caches, no source). Files of lists since edited, and one of
+    # an older format, are made older than the live list's own file.
+    root, _, live = _load_cached(write, registry, private_cache)
+    keep = _TermListCache.KEEP
+    old = [live.with_name(f"terms-{i:032x}.txt") for i in range(keep + 3)]
+    for i, f in enumerate(old):
+        f.write_bytes(b"guard-terms 1 0 0\n")
+        os.utime(f, (1_000_000 + i, 1_000_000 + i))
+    os.utime(live, (900_000, 900_000))  # older than every stale file...
+    load_sources([root / "r"], registry=registry)  # ...until this load reads it
+    # a second large list is written: pruning keeps the newest KEEP files
+    other = write({"s/ruleset.toml": TOML, "s/t.txt": _big_list(6001)})
+    load_sources([other / "s"], registry=registry)
+    left = _cache_files(private_cache)
+    assert len(left) == keep
+    assert live in left  # used lately, so kept
+    assert old[0] not in left and old[-1] in left  # the oldest went first
