@@ -135,7 +135,8 @@ def _waiting_for_input(pid: int) -> None:
     wchan = Path(f"/proc/{pid}/wchan")
     for _ in range(400):
         try:
-            if wchan.read_text() == "pipe_read":
+            # the kernel's function: pipe_read, anon_pipe_read since Linux 6.14 (from memory)
+            if wchan.read_text().endswith("pipe_read"):
                 return
         except OSError:
             return
