@@ -26,7 +26,7 @@ from dataclasses import dataclass, field
 
 from guard.errors import RecordError
 from guard.io.read import ErrorRecord, InputRecord, Limits
-from guard.records import Report, TokenKind, Verdict, quick_init
+from guard.records import Finding, Report, TokenKind, Verdict, quick_init
 from guard.text.tokenize import spans
 
 CRASHED = "the worker process checking this record died"
@@ -37,12 +37,49 @@ _MAX_DEAD_STARTS = 3
 
 @quick_init
 @dataclass(frozen=True, slots=True, kw_only=True)
+class Digest:
+    """What ``guard filter`` keeps of a report: the verdicts, the two guarded texts and
+    what a run's tally counts. A worker process sends this instead of the whole report,
+    which costs more to pickle and unpickle than the check itself, in the main process
+    that every worker waits on."""
+
+    lang: str
+    verdict: Verdict
+    rewrite_verdicts: tuple[Verdict, ...]
+    guarded: str
+    guarded_strict: str
+    tallied: tuple[tuple[str, str, str], ...]  # (rule, action, term or "") per finding
+
+    @classmethod
+    def of(cls, report: Report) -> Digest:
+        return cls(
+            lang=report.lang,
+            verdict=report.verdict,
+            rewrite_verdicts=tuple(rv.verdict for rv in report.rewrites),
+            guarded=report.guarded,
+            guarded_strict=report.guarded_strict,
+            tallied=tuple(_tallied(f) for f in report.findings),
+        )
+
+    def guarded_text(self, *, undo_flagged: bool = False) -> str:
+        return self.guarded_strict if undo_flagged else self.guarded
+
+
+def _tallied(f: Finding) -> tuple[str, str, str]:
+    term = f.evidence.get("term")
+    return f.rule, f.action.value, term if isinstance(term, str) else ""
+
+
+@quick_init
+@dataclass(frozen=True, slots=True, kw_only=True)
 class Outcome:
-    """One record and what came of it: a ``report``, or an ``error`` saying why not."""
+    """One record and what came of it: a ``report`` (or, when the batch was asked for
+    digests, a ``digest``), or an ``error`` saying why not."""
 
     record: InputRecord | ErrorRecord
     report: Report | None = None
     error: str | None = None
+    digest: Digest | None = None
 
 
 @quick_init
@@ -116,8 +153,12 @@ def check_records(
     chunk_size: int = 16,
     mp_context: str | None = None,
     record_timeout: float | None = None,
+    digests: bool = False,
 ) -> Iterator[Outcome]:
     """One outcome per record, in order.
+
+    ``digests``: outcomes carry a ``Digest`` of each report instead of the report (what
+    ``guard filter`` needs; with ``jobs > 1`` the workers make them).
 
     ``checker`` is the in-process checker to use with one job (built from
     ``checker_factory`` when not given); with ``jobs > 1`` every worker builds its own
@@ -137,9 +178,9 @@ def check_records(
             if job is None:
                 yield Outcome(record=record, error=error)
             else:
-                yield _outcome(record, _run(check, job))
+                yield _outcome(record, _run(check, job, digests))
         return
-    pool = _Pool(refs, jobs, checker_factory, chunk_size, mp_context, record_timeout)
+    pool = _Pool(refs, jobs, checker_factory, chunk_size, mp_context, record_timeout, digests)
     yield from pool.run(prepared)
 
 
@@ -164,10 +205,12 @@ def _prepare(record: InputRecord | ErrorRecord, lang_default: str | None, lim: L
     return record, job, None
 
 
-def _run(check: Checker, job: Job) -> Report | str:
-    """The report, or the reason the engine gave none. The batch must go on either way."""
+def _run(check: Checker, job: Job, digests: bool) -> Report | Digest | str:
+    """The report (or its digest), or the reason the engine gave none. The batch must go
+    on either way."""
     try:
-        return check(job)
+        report = check(job)
+        return Digest.of(report) if digests else report
     except RecordError as e:
         return e.reason
     except RecursionError:
@@ -176,9 +219,11 @@ def _run(check: Checker, job: Job) -> Report | str:
         return f"the engine failed: {type(e).__name__}: {e}"
 
 
-def _outcome(record: InputRecord | ErrorRecord, result: Report | str) -> Outcome:
+def _outcome(record: InputRecord | ErrorRecord, result: Report | Digest | str) -> Outcome:
     if isinstance(result, str):
         return Outcome(record=record, error=result)
+    if isinstance(result, Digest):
+        return Outcome(record=record, digest=result)
     return Outcome(record=record, report=result)
 
 
@@ -221,14 +266,14 @@ def _init_worker(factory: CheckerFactory, refs: tuple[str, ...]) -> None:
         _WORKER_CHECK = factory(refs)
 
 
-def _work(jobs: list[Job | None]) -> list[Report | str | None]:
+def _work(jobs: list[Job | None], digests: bool) -> list[Report | Digest | str | None]:
     check = _WORKER_CHECK
     if check is None:
         return ["the worker process has no ruleset loaded" if j else None for j in jobs]
-    return [None if j is None else _run(check, j) for j in jobs]
+    return [None if j is None else _run(check, j, digests) for j in jobs]
 
 
-_Results = list[Report | str | None]
+_Results = list[Report | Digest | str | None]
 
 
 @dataclass(slots=True)
@@ -242,6 +287,7 @@ class _Pool:
     chunk_size: int
     mp_context: str | None
     timeout: float | None  # seconds a record may take in a worker
+    digests: bool  # workers send digests, not reports
     generation: int = 0
     executor: ProcessPoolExecutor | None = None
     produced: bool = False  # has the current pool returned any result?
@@ -344,7 +390,7 @@ class _Pool:
             if self.executor is None:
                 return None
             try:
-                return self.executor.submit(_work, jobs)
+                return self.executor.submit(_work, jobs, self.digests)
             except BrokenProcessPool:
                 self._broken()
         return None
@@ -405,18 +451,18 @@ class Summary:
     def add(self, outcome: Outcome) -> None:
         self.read += 1
         report = outcome.report
-        if report is None:
+        digest = outcome.digest if report is None else Digest.of(report)
+        if digest is None:
             self.errors += 1
             return
         self.checked += 1
-        self.verdicts[report.verdict.value] += 1
-        self.languages[(report.lang, report.verdict.value)] += 1
-        for rv in report.rewrites:
-            self.rewrite_verdicts[rv.verdict.value] += 1
-        for f in report.findings:
-            self.rules[(f.rule, f.action.value)] += 1
-            term = f.evidence.get("term")
-            if isinstance(term, str) and term:
+        self.verdicts[digest.verdict.value] += 1
+        self.languages[(digest.lang, digest.verdict.value)] += 1
+        for verdict in digest.rewrite_verdicts:
+            self.rewrite_verdicts[verdict.value] += 1
+        for rule, action, term in digest.tallied:
+            self.rules[(rule, action)] += 1
+            if term:
                 self.terms[term] += 1
 
     @property

@@ -89,9 +89,10 @@ def command(
                 overrides=inputs.overrides,
                 checker=inputs.checker,
                 record_timeout=record_timeout,
+                digests=True,
             )
             for outcome in common.tally(outcomes, summary):
-                if outcome.report is None:
+                if outcome.digest is None:
                     click.echo(
                         f"guard filter: {visible(outcome.record.where)}: error: "
                         f"{visible(outcome.error or '')}",
@@ -118,8 +119,8 @@ class _Writer:
         self.undo_flagged = undo_flagged
 
     def guarded(self, outcome: Outcome) -> str | None:
-        report = outcome.report
-        return None if report is None else report.guarded_text(undo_flagged=self.undo_flagged)
+        digest = outcome.digest
+        return None if digest is None else digest.guarded_text(undo_flagged=self.undo_flagged)
 
     def write(self, outcome: Outcome) -> None:
         raise NotImplementedError

@@ -5,6 +5,7 @@ from __future__ import annotations
 import io
 import os
 import time
+from collections import Counter
 
 import pytest
 
@@ -141,6 +142,37 @@ def test_several_jobs_give_the_same_outcomes_as_one(jobs: int) -> None:
     one = list(check_records(records(lines), ["base"], jobs=1))
     many = list(check_records(records(lines), ["base"], jobs=jobs, chunk_size=3))
     assert many == one
+
+
+def test_digests_count_and_guard_as_the_reports_do() -> None:
+    # what guard filter asks for: the same guarded texts and the same tally as from the
+    # whole reports (the reports are the reference), in one process and from workers
+    lines = [LINES[0], LINES[1], LINES[2], LINES[5]] * 3
+    full = list(check_records(records(lines), ["base"], jobs=1))
+    assert any(o.report is not None and o.report.findings for o in full)
+    for jobs in (1, 2):
+        digested = list(check_records(records(lines), ["base"], jobs=jobs, digests=True))
+        assert [o.record for o in digested] == [o.record for o in full]
+        assert [o.error for o in digested] == [o.error for o in full]
+        for d, f in zip(digested, full, strict=True):
+            assert d.report is None and (d.digest is None) == (f.report is None)
+            if d.digest is not None and f.report is not None:
+                for undo in (False, True):
+                    got = d.digest.guarded_text(undo_flagged=undo)
+                    assert got == f.report.guarded_text(undo_flagged=undo)
+        by_digest, by_report = Summary(), Summary()
+        for o in digested:
+            by_digest.add(o)
+        for o in full:
+            by_report.add(o)
+        assert by_digest == by_report
+        reports = [o.report for o in full if o.report is not None]
+        findings = [f for r in reports for f in r.findings]
+        assert by_digest.rules == Counter((f.rule, f.action.value) for f in findings)
+        assert by_digest.rewrite_verdicts == Counter(
+            rv.verdict.value for r in reports for rv in r.rewrites
+        )
+        assert by_digest.verdicts == Counter(r.verdict.value for r in reports)
 
 
 def failing_factory(refs: tuple[str, ...]) -> Checker:
