@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 from guard.align import align, apply
 from guard.decide import decide, pair_verdict
-from guard.records import Finding, Report, Rewrite, RewriteVerdict, Verdict
+from guard.records import Finding, Report, Rewrite, RewriteVerdict, Verdict, unchanged_report
 from guard.rules import REGISTRY, PairContext, Rule, Scope
 from guard.rules.base import CheckFn
 from guard.rules.words import PATTERN_TIMEOUT_S
@@ -124,17 +124,7 @@ class Engine:
         rs = self.ruleset
         lang = lang or rs.default_language
         if source == proposal:
-            return Report(
-                source=source,
-                proposal=proposal,
-                lang=lang,
-                verdict=Verdict.ACCEPT,
-                rewrites=(),
-                pair_findings=(),
-                guarded=source,
-                guarded_strict=source,
-                ruleset=rs.name,
-            )
+            return unchanged_report(source, lang, rs.name)
         rewrites = align(source, proposal)
         hits, timeouts = _pattern_hits(rs, source)
         ctx = PairContext(

@@ -10,7 +10,7 @@ import pickle
 import pytest
 
 from guard.api import Guard
-from guard.records import Origin, Report, Token, TokenKind
+from guard.records import Origin, Report, Token, TokenKind, Verdict, unchanged_report
 
 PAIRS = [
     pytest.param("Send the JSON file", "Send the Jason file", id="vetoed"),
@@ -43,3 +43,25 @@ def test_records_stay_frozen_and_keep_defaults() -> None:
     assert Origin(file="a.toml") == Origin(file="a.toml", line=None, key=None)
     with pytest.raises(TypeError):
         Token("pump", 0, 4, TokenKind.WORD)  # type: ignore[call-arg]  # keyword-only
+
+
+def test_the_unchanged_report_is_the_one_the_keyword_constructor_makes() -> None:
+    # the positional maker must set every field, each to what the dataclass would hold
+    made = unchanged_report("same text", "de", "base")
+    expected = Report(
+        source="same text",
+        proposal="same text",
+        lang="de",
+        verdict=Verdict.ACCEPT,
+        rewrites=(),
+        pair_findings=(),
+        guarded="same text",
+        guarded_strict="same text",
+        ruleset="base",
+    )
+    assert made == expected and type(made) is Report
+    assert all(
+        getattr(made, f.name) == getattr(expected, f.name) for f in dataclasses.fields(Report)
+    )
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        made.source = "other"  # type: ignore[misc]
