@@ -341,6 +341,18 @@ def _no_duplicates(pairs: list[tuple[str, object]]) -> dict[str, object]:
     return out
 
 
+# One decoder for every line: json.loads with a hook builds a new decoder (and scanner)
+# on each call, which cost more than the parse of a short record.
+_DECODER = json.JSONDecoder(object_pairs_hook=_no_duplicates)
+
+
+def _json_object(text: str) -> object:
+    """``json.loads(text, object_pairs_hook=_no_duplicates)``, with one decoder kept."""
+    if text.startswith("\ufeff"):  # what json.loads says of a byte order mark
+        raise json.JSONDecodeError("Unexpected UTF-8 BOM (decode using utf-8-sig)", text, 0)
+    return _DECODER.decode(text)
+
+
 def _depth_over(value: object, limit: int) -> bool:
     stack: list[tuple[object, int]] = [(value, 1)]
     while stack:
@@ -407,7 +419,7 @@ def _jsonl(
             continue
         number, text = item
         try:
-            value = json.loads(text, object_pairs_hook=_no_duplicates)
+            value = _json_object(text)
         except _Duplicate as e:
             reason = f"duplicate field {e.args[0]!r}"
         except RecursionError:
