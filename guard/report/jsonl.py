@@ -31,6 +31,10 @@ def outcome_json(outcome: Outcome) -> dict[str, object]:
     return out
 
 
+# json.dumps with options builds an encoder on every call; one line per record adds up.
+_ENCODER = json.JSONEncoder(ensure_ascii=False, separators=(",", ":"))
+
+
 def dumps(obj: object) -> str:
     """One JSON line: UTF-8 text kept as is, keys in the order given.
 
@@ -40,7 +44,7 @@ def dumps(obj: object) -> str:
     >>> dumps({"t": "a\\u2028b"})
     '{"t":"a\\\\u2028b"}'
     """
-    text = json.dumps(obj, ensure_ascii=False, separators=(",", ":"))
+    text = _ENCODER.encode(obj)
     return text.replace("\u2028", "\\u2028").replace("\u2029", "\\u2029")
 
 
