@@ -78,7 +78,11 @@ def command(
     )
     summary = Summary()
     try:
-        with atomic_output(output, line_buffering=True) as stream:
+        # Records from standard input may come one at a time from a process waiting for
+        # each answer: every line goes out as it is done. From files, lines go out in
+        # blocks (a write call per line cost a few percent of a record).
+        streaming = not files or "-" in files
+        with atomic_output(output, line_buffering=streaming) as stream:
             writer = _writer(formats[0], stream, undo_flagged)
             outcomes = check_records(
                 inputs.records,
