@@ -449,12 +449,16 @@ class Summary:
     languages: Counter[tuple[str, str]] = field(default_factory=Counter)
 
     def add(self, outcome: Outcome) -> None:
-        self.read += 1
         report = outcome.report
         digest = outcome.digest if report is None else Digest.of(report)
+        # The counts that must reconcile change together, after every call: CPython runs
+        # a signal handler (Ctrl-C) only at a call or a backward jump (its eval breaker,
+        # from memory), so an interrupt cannot land between them.
         if digest is None:
+            self.read += 1
             self.errors += 1
             return
+        self.read += 1
         self.checked += 1
         self.verdicts[digest.verdict.value] += 1
         self.languages[(digest.lang, digest.verdict.value)] += 1
