@@ -24,7 +24,11 @@ misspellings needs the new word to be one the documents use once the source is a
 ``vocabulary-min-zipf`` common: misspellings sit low in the lists and land on the
 commonest words, which any team's documents hold ("teh" -> "the"), while a listed word
 of middling frequency moved onto a word the team never writes ("sed" -> "bed") is
-another word the speller does not know.
+another word the speller does not know. A source word that begins with a vocabulary word
+of ``vocabulary-part-letters`` letters or more, which the rewrite changes
+("versionierten" -> "pensionierten" takes "version" apart), is a domain word changed
+too: the head of a derived or compound word the team writes; a typo seldom makes a long
+domain word of a word's start, and a fix of a typo further on leaves the head whole.
 
 Accepts: "teh" -> "the" (Zipf gain above min-gain). Vetoes: "kernel" -> "kennel".
 """
@@ -86,6 +90,29 @@ def _vocabulary_word(rw: Rewrite, vocab: frozenset[str]) -> str | None:
     return None
 
 
+def _vocabulary_head(rw: Rewrite, vocab: frozenset[str], least: int) -> str | None:
+    """A word of the domain vocabulary, ``least`` letters or more, that the changed word
+    (or changed part) of the source begins with and what replaces it does not: the
+    speller rewrote the known head of a derived or compound word ("versionierten" begins
+    with "version")."""
+    if least < 1:
+        return None
+    old = content_tokens(rw.old_tokens)
+    new = content_tokens(rw.new_tokens)
+    if len(old) != 1 or len(new) != 1:
+        return None
+    for part, replaced in changed_parts(old[0].text, new[0].text):
+        word = normalize_key(part, fold=True)
+        if len(word) <= least:
+            continue  # the whole part is a vocabulary word or not: _vocabulary_word's case
+        after = normalize_key(replaced, fold=True)
+        for size in range(len(word) - 1, least - 1, -1):
+            piece = word[:size]
+            if piece in vocab and not after.startswith(piece):
+                return piece
+    return None
+
+
 def _outside_vocabulary(rw: Rewrite, vocab: frozenset[str]) -> bool:
     """Whether a word the rewrite writes (a changed part, for a hyphenated word) is
     missing from the domain vocabulary."""
@@ -116,6 +143,22 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
                 old=rw.old,
                 new=rw.new,
                 word=known,
+                lang=ctx.lang,
+            )
+        least = settings.options["vocabulary-part-letters"]
+        assert isinstance(least, int)
+        inside = _vocabulary_head(rw, vocab, least)
+        if inside is not None:
+            return finding(
+                NAME,
+                Tier.EVIDENCE,
+                settings,
+                "'{old}' begins with '{word}', a word of the domain's own documents ({lang} "
+                "vocabulary), and '{new}' rewrites it",
+                rewrite=rw.index,
+                old=rw.old,
+                new=rw.new,
+                word=inside,
                 lang=ctx.lang,
             )
     split_zipf = _split_of_known_word(rw, ctx, settings)
@@ -208,6 +251,14 @@ RULE = Rule(
             type=float,
             doc="with a domain vocabulary, a source word at least this common passes the "
             "min-gain exemption only toward a word of the vocabulary",
+            per_lang=True,
+        ),
+        "vocabulary-part-letters": OptionSpec(
+            default=6,
+            type=int,
+            doc="with a domain vocabulary, a source word that begins with a vocabulary word "
+            "of at least this many letters, which the rewrite changes, is a domain word "
+            "changed (0: off)",
             per_lang=True,
         ),
         "split-min-zipf": OptionSpec(

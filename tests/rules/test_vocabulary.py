@@ -97,3 +97,17 @@ def test_a_vocabulary_needs_a_language_tag(tmp_path: Path) -> None:
     )
     with pytest.raises(RulesetError, match="not a language tag"):
         load_ruleset(ruleset)
+
+
+def test_a_word_that_begins_with_a_vocabulary_word(tmp_path: Path) -> None:
+    # "printerless" is unlisted (wordfreq), so only its head says it is a domain word
+    assert wordfreq.zipf_frequency("printerless", "en") == 0.0
+    base = Guard(load_ruleset("base"))
+    pair = ("a printerless setup", "a pointerless setup")
+    assert real_word(base.check(*pair, lang="en")) == set()
+    guard = with_vocabulary(tmp_path, ["printer", "setup"])
+    report = guard.check(*pair, lang="en")
+    assert real_word(report) == {Action.VETO}
+    assert "begins with 'printer'" in report.findings[0].message
+    # a typo fixed further on leaves the head whole: nothing for the vocabulary to say
+    assert real_word(guard.check("a printerlss setup", "a printerless setup", lang="en")) == set()
