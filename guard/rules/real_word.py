@@ -125,42 +125,48 @@ def _outside_vocabulary(rw: Rewrite, vocab: frozenset[str]) -> bool:
     return any(normalize_key(w, fold=True) not in vocab for w in written)
 
 
+def _vocabulary_finding(
+    rw: Rewrite, ctx: PairContext, settings: RuleSettings, vocab: frozenset[str]
+) -> Finding | None:
+    """The objection when the rewrite changes a word of the domain vocabulary, or the
+    vocabulary word a source word begins with."""
+    template = (
+        "'{word}' is a word of the domain's own documents ({lang} vocabulary); "
+        "a speller that changes it does not know it"
+    )
+    word = _vocabulary_word(rw, vocab)
+    if word is None:
+        least = settings.options["vocabulary-part-letters"]
+        assert isinstance(least, int)
+        word = _vocabulary_head(rw, vocab, least)
+        template = (
+            "'{old}' begins with '{word}', a word of the domain's own documents ({lang} "
+            "vocabulary), and '{new}' rewrites it"
+        )
+    if word is None:
+        return None
+    return finding(
+        NAME,
+        Tier.EVIDENCE,
+        settings,
+        template,
+        rewrite=rw.index,
+        old=rw.old,
+        new=rw.new,
+        word=word,
+        lang=ctx.lang,
+    )
+
+
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if ctx.lexicon is None or rw.kind is RewriteKind.INSERT:
         return None
     vocab = domain_vocabulary(ctx)
     if vocab is not None and rw.refinement not in SKIP:
-        known = _vocabulary_word(rw, vocab)
-        if known is not None:
-            return finding(
-                NAME,
-                Tier.EVIDENCE,
-                settings,
-                "'{word}' is a word of the domain's own documents ({lang} vocabulary); "
-                "a speller that changes it does not know it",
-                rewrite=rw.index,
-                old=rw.old,
-                new=rw.new,
-                word=known,
-                lang=ctx.lang,
-            )
-        least = settings.options["vocabulary-part-letters"]
-        assert isinstance(least, int)
-        inside = _vocabulary_head(rw, vocab, least)
-        if inside is not None:
-            return finding(
-                NAME,
-                Tier.EVIDENCE,
-                settings,
-                "'{old}' begins with '{word}', a word of the domain's own documents ({lang} "
-                "vocabulary), and '{new}' rewrites it",
-                rewrite=rw.index,
-                old=rw.old,
-                new=rw.new,
-                word=inside,
-                lang=ctx.lang,
-            )
+        found = _vocabulary_finding(rw, ctx, settings, vocab)
+        if found is not None:
+            return found
     split_zipf = _split_of_known_word(rw, ctx, settings)
     if split_zipf is not None:
         return finding(
