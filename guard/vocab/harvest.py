@@ -555,10 +555,6 @@ def wordfreq_lang(tag: str) -> str:
 # --- the domain vocabulary -----------------------------------------------------------
 
 _PART_SPLIT = regex.compile(r"[\-‐‑'’]")
-_LETTER_RUN = regex.compile(r"\p{L}+")
-_LITERAL_PARTS = frozenset({TokenKind.IDENTIFIER, TokenKind.FLAG, TokenKind.PATH})
-"""Literal tokens whose letter runs are words of the domain: the program words a team
-writes inside its options, paths and identifiers ("--process=PID", "/etc/passwd")."""
 
 
 def vocabulary(
@@ -568,10 +564,8 @@ def vocabulary(
 
     A word is a word token of two letters or more, case folded; a hyphenated or elided
     word counts as its parts too ("NULL-Zeiger" adds "null" and "zeiger"), since the
-    rules judge a hyphenated word by its changed part. Identifiers, option flags and
-    paths add their runs of two letters or more ("--dry-run" adds "dry" and "run"): the
-    same program words turn up in prose. Codes (letters with digits), URLs, e-mail
-    addresses and placeholders add nothing. ``min_count`` is the fewest occurrences a word
+    rules judge a hyphenated word by its changed part. Literal tokens (codes, paths,
+    flags) are left to the term lists. ``min_count`` is the fewest occurrences a word
     needs: 1 by default, since the documents are the team's own, taken as written.
 
     >>> vocabulary([("a", "Reset the QSP-Panel. The panel blinks.")])
@@ -582,11 +576,6 @@ def vocabulary(
     counts: Counter[str] = Counter()
     for _, text in docs:
         for tok in tokenize(text):
-            if tok.kind in _LITERAL_PARTS:
-                for run in _LETTER_RUN.findall(tok.text):
-                    if len(run) >= 2:
-                        counts[run.casefold()] += 1
-                continue
             if tok.kind is not TokenKind.WORD or _letters(tok.text) < 2:
                 continue
             word = tok.text.casefold()

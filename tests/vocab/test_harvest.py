@@ -453,16 +453,6 @@ def test_vocabulary_counts_hyphenated_words_and_their_parts() -> None:
         vocabulary([], min_count=0)
 
 
-def test_vocabulary_takes_the_words_inside_options_paths_and_identifiers() -> None:
-    # Option names, file paths and snake_case names are made of the same program words
-    # as the prose around them; runs of letters are what a plain regex split gives
-    # (common practice, no source). Codes (letters with digits) add nothing.
-    words = dict(vocabulary([("a", "Run with --dry-run, read /var/spool/qm and sync_window.")]))
-    assert {"dry", "run", "var", "spool", "qm", "sync", "window"} <= set(words)
-    assert words["run"] == 2  # the verb and the option's part
-    assert not {"qm-4410", "4410"} & set(dict(vocabulary([("a", "the QM-4410 dock")])))
-
-
 def test_cli_vocabulary_reads_back_as_a_ruleset(tmp_path: Path) -> None:
     out_dir = tmp_path / "drafts"
     corpus = _corpus(tmp_path)
