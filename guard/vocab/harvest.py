@@ -33,8 +33,9 @@ professionals decide what must be protected.
 
 ``vocabulary`` lists every word the documents use, common ones too, with its count; a
 ruleset names that list under ``[vocabulary]`` (per language) as evidence of what the
-domain writes: the ``real-word`` rule then treats a listed word as real in the domain and
-lets a frequent-misspelling fix land only on a word the documents use. Unlike a
+domain writes: the ``real-word`` rule then treats a listed word (or the long listed word a
+word begins with) as real in the domain and lets a frequent-misspelling fix land only on
+a word the documents use. Unlike a
 protected term, a vocabulary word is never protected by itself.
 
 ``rank_attacked`` reorders candidates by how often a speller actually changed them in a
