@@ -4,8 +4,9 @@ the same domain.
 For each language, the messages of evaluation/sets/<lang>.jsonl from line ``--first``
 (600: after the tuning part, lines 0-299, and the held-out part, 300-599, that run.py
 scores) are a team's "own documents": `guard harvest` reads them,
-the draft term lists it writes are used as they are (no hand review, so this is the
-floor of what a team gets), and a ruleset extending base protects them. Then run.py
+the draft term lists and the vocabulary (every word of the documents, per language) it
+writes are used as they are (no hand review, so this is the floor of what a team gets),
+and a ruleset extending base protects the terms and names the vocabulary. Then run.py
 scores either part with that ruleset:
 
     python evaluation/harvested.py            # writes evaluation/harvested/ruleset.toml
@@ -22,7 +23,7 @@ from pathlib import Path
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE.parent))
 
-from guard.vocab.harvest import harvest, write_drafts  # noqa: E402
+from guard.vocab.harvest import harvest, vocabulary, write_drafts, write_vocabulary  # noqa: E402
 
 LANGS = ("en", "de", "fr", "es", "nl")
 # Kinds whose spelling is the point keep their case; plain terms match in any case.
@@ -47,12 +48,20 @@ def main() -> int:
         'extends = ["base"]',
         "",
     ]
+    vocab_lines = ["[vocabulary]"]
     for lang in LANGS:
         lines = (HERE / "sets" / f"{lang}.jsonl").read_text(encoding="utf-8").splitlines()
         docs = [(d["id"], d["text"]) for d in map(json.loads, lines[args.first :])]
         found = harvest(docs, lang=lang, min_count=args.min_count)
         files = write_drafts(found, out / lang, overwrite=True)
-        print(f"{lang}: {len(docs)} messages, {len(found)} candidate terms", file=sys.stderr)
+        words = vocabulary(docs)
+        vocab_file = write_vocabulary(words, out / lang, overwrite=True)
+        vocab_lines.append(f'{lang} = "{vocab_file.relative_to(out).as_posix()}"')
+        print(
+            f"{lang}: {len(docs)} messages, {len(found)} candidate terms, "
+            f"{len(words)} vocabulary words",
+            file=sys.stderr,
+        )
         for path in files:
             kind = path.stem
             rel = path.relative_to(out).as_posix()
@@ -63,6 +72,7 @@ def main() -> int:
                 f'case = "{CASE.get(kind, "fold")}"',
                 "",
             ]
+    blocks += [*vocab_lines, ""]
     (out / "ruleset.toml").write_text("\n".join(blocks), encoding="utf-8")
     print(f"wrote {out / 'ruleset.toml'}", file=sys.stderr)
     return 0

@@ -18,7 +18,7 @@ Each set has three parts: lines 0-299 are the tuning part (the default; the base
 ruleset's thresholds were chosen on it), lines 300-599 the held-out part (``--start 300``,
 scored only to report, never to choose a setting), lines 600 on the harvest part.
 With ``--harvest``, each language is also scored with a second ruleset: base plus the
-terms ``guard harvest`` proposes from the harvest part (``--harvest-from``), which
+terms and the vocabulary ``guard harvest`` draws from the harvest part (``--harvest-from``), which
 neither scored part overlaps: other text of the same domain, as a team would harvest its own
 documents. The draft lists are used as harvested, unreviewed.
 
@@ -122,13 +122,14 @@ def propose(job: tuple[str, str, list[str]]) -> tuple[str, str, dict[str, str], 
 
 def harvest_ruleset(lang: str, first: int) -> Path:
     """Write a ruleset (base plus the terms harvested from the set's lines from ``first``)."""
-    from guard.vocab.harvest import harvest, write_drafts
+    from guard.vocab.harvest import harvest, vocabulary, write_drafts, write_vocabulary
 
     path = HERE / "sets" / f"{lang}.jsonl"
     lines = [json.loads(x) for x in path.read_text(encoding="utf-8").splitlines()]
     docs = [(str(d["id"]), str(d["text"])) for d in lines[first:]]
     folder = WORK / "harvest" / lang
     written = write_drafts(harvest(docs, lang=lang), folder, overwrite=True)
+    vocab = write_vocabulary(vocabulary(docs), folder, overwrite=True)
     parts = [
         f'[ruleset]\nname = "harvest-{lang}"\n'
         f'description = "base plus terms harvested from held-out {lang} messages"\n'
@@ -141,6 +142,7 @@ def harvest_ruleset(lang: str, first: int) -> Path:
             f'\n[[terms]]\nfile = "terms/{term_file.name}"\nkind = "{term_file.stem}"\n'
             f'case = "{case}"\n'
         )
+    parts.append(f'\n[vocabulary]\n{lang} = "{vocab.name}"\n')
     (folder / "ruleset.toml").write_text("".join(parts), encoding="utf-8")
     return folder / "ruleset.toml"
 

@@ -24,8 +24,10 @@ from guard.vocab.harvest import (
     harvest,
     rank_attacked,
     read_corpus,
+    vocabulary,
     wordfreq_lang,
     write_drafts,
+    write_vocabulary,
 )
 
 EXIT_OK = 0
@@ -72,6 +74,14 @@ _CONTEXT_WIDTH = 70
     metavar="DIR",
     help="Also write draft term lists to DIR/terms/<kind>.txt.",
 )
+@click.option(
+    "--vocabulary/--no-vocabulary",
+    "with_vocabulary",
+    default=True,
+    show_default=True,
+    help="With --out, also write DIR/vocabulary.txt: every word of the corpus, for a "
+    "ruleset's [vocabulary].",
+)
 @click.option("--force", is_flag=True, help="Overwrite draft lists that exist in --out.")
 @click.option(
     "--proposals",
@@ -97,6 +107,7 @@ def command(
     min_g2: float,
     top: int | None,
     out: Path | None,
+    with_vocabulary: bool,
     force: bool,
     proposals: str | None,
     fmt: str,
@@ -134,6 +145,8 @@ def command(
     if out is not None:
         try:
             written = write_drafts(shown, out, overwrite=force)
+            if with_vocabulary:
+                written.append(write_vocabulary(vocabulary(docs), out, overwrite=force))
         except GuardError as e:
             click.echo(f"guard harvest: {e} (use --force to replace them)", err=True)
             raise click.exceptions.Exit(EXIT_INPUT) from None

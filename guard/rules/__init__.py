@@ -29,6 +29,7 @@ from guard.rules import (
     rewrite_density,
     script_change,
     short_token,
+    split_word,
     unknown_target,
 )
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope
@@ -51,6 +52,7 @@ REGISTRY: Mapping[str, Rule] = MappingProxyType(
             real_word,
             clipped_word,
             compound_word,
+            split_word,
             mentioned_word,
             rarer_target,
             unknown_target,

@@ -15,13 +15,18 @@ another acronym or a common word in capitals ("UND"), never a fixed typo of one.
 case too ("SVGZ-Bild", "USB-Stick"), whatever its length: German and Dutch join an
 abbreviation to a word with a hyphen.
 
+A capitalised word whose only change is to lose its capital ("Commence" -> "commence",
+at a sentence start too) gets ``lowered-action``: a typo changes letters, not the case a
+writer chose, so this is a speller imposing the case its dictionary lists (some spellers
+lower the whole run of words they rejoin).
+
 Accepts: "HTTTP server" -> "HTTP server"; "teh" -> "the".
 Vetoes: "NASA" -> "Nasa"; "JSON" -> "Jason". Flags: "met Mrs Kowalczyk" -> "met Mrs Kowalski".
 """
 
 from __future__ import annotations
 
-from guard.records import Action, Finding, Rewrite, Tier, Token, TokenKind
+from guard.records import Action, Finding, Refinement, Rewrite, Tier, Token, TokenKind
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
 from guard.rules.words import (
     UNKNOWN_BELOW,
@@ -48,6 +53,24 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
         if tok.kind is not TokenKind.WORD or tok.text.islower() or tok.text in new_texts:
             continue  # islower: no capital, so no shape this rule protects
         shape = shape_of(tok.text)
+        lowered = settings.options["lowered-action"]
+        if (
+            lowered in ("flag", "veto")
+            and shape is Shape.TITLE
+            and rw.refinement is Refinement.CASE
+            and tok.text.lower() in new_texts
+        ):
+            return finding(
+                NAME,
+                Tier.DOMAIN,
+                settings,
+                "the rewrite only lowers the capital of '{token}': a typo changes letters, "
+                "not the case a writer chose",
+                rewrite=rw.index,
+                action=Action(str(lowered)),
+                token=tok.text,
+                shape=shape.value,
+            )
         if shape in (Shape.ALLCAPS, Shape.INTERNAL_CAP) and sum(c.isalpha() for c in tok.text) >= 2:
             action = None
         elif shape is Shape.TITLE and not _sentence_start(ctx, tok):
@@ -135,6 +158,14 @@ RULE = Rule(
             type=str,
             doc="what a change to a capitalised word inside a sentence gets: flag, veto or "
             "off (veto suits languages that capitalise nouns)",
+            per_lang=True,
+            choices=("flag", "veto", "off"),
+        ),
+        "lowered-action": OptionSpec(
+            default="off",
+            type=str,
+            doc="what a rewrite that only lowers a capitalised word's capital gets, at a "
+            "sentence start too: flag, veto or off",
             per_lang=True,
             choices=("flag", "veto", "off"),
         ),

@@ -16,6 +16,20 @@ punctuation-only ones are ("doesn’t" -> "doesn't" gains nothing).
 A split of a word the lexicon knows ("Fehlgeformter" -> "Fehl geformter") is objected to
 as well: a typo does not glue words into one the language already has.
 
+With a domain vocabulary (the ruleset's ``[vocabulary]``: the words of the team's own
+documents, as `guard harvest` lists them) two more objections hold. A word of that
+vocabulary is real in the domain whatever its Zipf ("cwd", "tar"), so changing it (or a
+changed part of a hyphenated word) is objected to. And the exemption for frequent
+misspellings needs the new word to be one the documents use once the source is at least
+``vocabulary-min-zipf`` common: misspellings sit low in the lists and land on the
+commonest words, which any team's documents hold ("teh" -> "the"), while a listed word
+of middling frequency moved onto a word the team never writes ("sed" -> "bed") is
+another word the speller does not know. A source word that begins with a vocabulary word
+of ``vocabulary-part-letters`` letters or more, which the rewrite changes
+("versionierten" -> "pensionierten" takes "version" apart), is a domain word changed
+too: the head of a derived or compound word the team writes; a typo seldom makes a long
+domain word of a word's start, and a fix of a typo further on leaves the head whole.
+
 Accepts: "teh" -> "the" (Zipf gain above min-gain). Vetoes: "kernel" -> "kennel".
 """
 
@@ -23,8 +37,16 @@ from __future__ import annotations
 
 from guard.records import Action, Finding, Refinement, Rewrite, RewriteKind, Tier
 from guard.rules.base import OptionSpec, PairContext, Rule, Scope, finding
-from guard.rules.words import content_tokens, phrase_zipf, within_edits, zipf
+from guard.rules.words import (
+    changed_parts,
+    content_tokens,
+    domain_vocabulary,
+    phrase_zipf,
+    within_edits,
+    zipf,
+)
 from guard.ruleset.model import RuleSettings
+from guard.text.normalize import normalize_key
 
 NAME = "real-word"
 SKIP = frozenset({Refinement.CASE, Refinement.SPACING})
@@ -52,10 +74,99 @@ def _near(rw: Rewrite, settings: RuleSettings) -> bool:
     return within_edits(rw.old, rw.new, most)
 
 
+def _vocabulary_word(rw: Rewrite, vocab: frozenset[str]) -> str | None:
+    """The changed word (or changed part of a hyphenated word) of the source that the
+    domain vocabulary lists, if any; the whole word when the speller splits it."""
+    old = content_tokens(rw.old_tokens)
+    new = content_tokens(rw.new_tokens)
+    if len(old) != 1 or not new:
+        return None
+    if len(new) > 1:
+        word = old[0].text
+        return word if normalize_key(word, fold=True) in vocab else None
+    for part, _ in changed_parts(old[0].text, new[0].text):
+        if normalize_key(part, fold=True) in vocab:
+            return part
+    return None
+
+
+def _vocabulary_head(rw: Rewrite, vocab: frozenset[str], least: int) -> str | None:
+    """A word of the domain vocabulary, ``least`` letters or more, that the changed word
+    (or changed part) of the source begins with and what replaces it does not: the
+    speller rewrote the known head of a derived or compound word ("versionierten" begins
+    with "version")."""
+    if least < 1:
+        return None
+    old = content_tokens(rw.old_tokens)
+    new = content_tokens(rw.new_tokens)
+    if len(old) != 1 or len(new) != 1:
+        return None
+    for part, replaced in changed_parts(old[0].text, new[0].text):
+        word = normalize_key(part, fold=True)
+        if len(word) <= least:
+            continue  # the whole part is a vocabulary word or not: _vocabulary_word's case
+        after = normalize_key(replaced, fold=True)
+        for size in range(len(word) - 1, least - 1, -1):
+            piece = word[:size]
+            if piece in vocab and not after.startswith(piece):
+                return piece
+    return None
+
+
+def _outside_vocabulary(rw: Rewrite, vocab: frozenset[str]) -> bool:
+    """Whether a word the rewrite writes (a changed part, for a hyphenated word) is
+    missing from the domain vocabulary."""
+    old = content_tokens(rw.old_tokens)
+    new = content_tokens(rw.new_tokens)
+    if len(old) == 1 and len(new) == 1:
+        written = [b for _, b in changed_parts(old[0].text, new[0].text)]
+    else:
+        written = [t.text for t in new]
+    return any(normalize_key(w, fold=True) not in vocab for w in written)
+
+
+def _vocabulary_finding(
+    rw: Rewrite, ctx: PairContext, settings: RuleSettings, vocab: frozenset[str]
+) -> Finding | None:
+    """The objection when the rewrite changes a word of the domain vocabulary, or the
+    vocabulary word a source word begins with."""
+    template = (
+        "'{word}' is a word of the domain's own documents ({lang} vocabulary); "
+        "a speller that changes it does not know it"
+    )
+    word = _vocabulary_word(rw, vocab)
+    if word is None:
+        least = settings.options["vocabulary-part-letters"]
+        assert isinstance(least, int)
+        word = _vocabulary_head(rw, vocab, least)
+        template = (
+            "'{old}' begins with '{word}', a word of the domain's own documents ({lang} "
+            "vocabulary), and '{new}' rewrites it"
+        )
+    if word is None:
+        return None
+    return finding(
+        NAME,
+        Tier.EVIDENCE,
+        settings,
+        template,
+        rewrite=rw.index,
+        old=rw.old,
+        new=rw.new,
+        word=word,
+        lang=ctx.lang,
+    )
+
+
 def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Finding | None:
     assert rw is not None
     if ctx.lexicon is None or rw.kind is RewriteKind.INSERT:
         return None
+    vocab = domain_vocabulary(ctx)
+    if vocab is not None and rw.refinement not in SKIP:
+        found = _vocabulary_finding(rw, ctx, settings, vocab)
+        if found is not None:
+            return found
     split_zipf = _split_of_known_word(rw, ctx, settings)
     if split_zipf is not None:
         return finding(
@@ -81,7 +192,23 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
         return None
     z_new = phrase_zipf(ctx, rw.new_tokens) if content_tokens(rw.new_tokens) else 0.0
     if z_new - z_old >= min_gain and _near(rw, settings):
-        return None
+        floor = settings.options["vocabulary-min-zipf"]
+        assert isinstance(floor, float)
+        if vocab is None or z_old < floor or not _outside_vocabulary(rw, vocab):
+            return None
+        return finding(
+            NAME,
+            Tier.EVIDENCE,
+            settings,
+            "'{old}' is a {lang} word (Zipf {zipf_old}), too common for a misspelling, "
+            "and '{new}' is not a word of the domain's own documents",
+            rewrite=rw.index,
+            old=rw.old,
+            new=rw.new,
+            lang=ctx.lang,
+            zipf_old=z_old,
+            vocabulary_min_zipf=floor,
+        )
     return finding(
         NAME,
         Tier.EVIDENCE,
@@ -123,6 +250,21 @@ RULE = Rule(
             type=int,
             doc="the min-gain exemption holds only for fixes at most this many edits away "
             "(-1: any distance)",
+            per_lang=True,
+        ),
+        "vocabulary-min-zipf": OptionSpec(
+            default=2.5,
+            type=float,
+            doc="with a domain vocabulary, a source word at least this common passes the "
+            "min-gain exemption only toward a word of the vocabulary",
+            per_lang=True,
+        ),
+        "vocabulary-part-letters": OptionSpec(
+            default=6,
+            type=int,
+            doc="with a domain vocabulary, a source word that begins with a vocabulary word "
+            "of at least this many letters, which the rewrite changes, is a domain word "
+            "changed (0: off)",
             per_lang=True,
         ),
         "split-min-zipf": OptionSpec(

@@ -154,3 +154,16 @@ def domain_known(ctx: PairContext, text: str) -> bool:
         except TimeoutError:
             continue
     return False
+
+
+def domain_vocabulary(ctx: PairContext) -> frozenset[str] | None:
+    """The folded words of the team's own documents in the pair's language (the
+    ruleset's ``[vocabulary]``), or None when the ruleset lists none for it: then no rule
+    may read a word's absence from it as evidence."""
+    vocab = ctx.ruleset.vocabulary
+    if not vocab:  # most rulesets: no vocabulary at all
+        return None
+    found = vocab.get(ctx.lang)
+    if found is None and "-" in ctx.lang:
+        found = vocab.get(ctx.lang.split("-", 1)[0])
+    return found

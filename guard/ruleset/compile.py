@@ -70,4 +70,5 @@ def compile_ruleset(resolved: ResolvedRuleset) -> CompiledRuleset:
         examples=resolved.examples,
         matcher=TermMatcher(resolved.terms),
         lexicons=LexiconProvider(),
+        vocabulary=resolved.vocabulary,
     )

@@ -116,6 +116,7 @@ class ResolvedRuleset:
     blocked: tuple[PairEntry, ...]
     allowed: tuple[PairEntry, ...]
     critical: tuple[TermEntry, ...]
+    vocabulary: Mapping[str, frozenset[str]]  # language -> folded words of its documents
     examples: tuple[Example, ...]
     parent_examples: tuple[Example, ...]
     meta: Mapping[str, Settings]
@@ -242,6 +243,7 @@ class _Layer:
     blocked: list[PairEntry] = field(default_factory=list)
     allowed: list[PairEntry] = field(default_factory=list)
     critical: list[TermEntry] = field(default_factory=list)
+    vocabulary: dict[str, set[str]] = field(default_factory=dict)
     examples: list[Example] = field(default_factory=list)
     rules: dict[str, dict[str, tuple[object, Origin]]] = field(default_factory=dict)
     files: list[str] = field(default_factory=list)
@@ -374,6 +376,7 @@ class _FileReader:
             "patterns": self.patterns,
             "pairs": self.pairs,
             "critical": self.critical,
+            "vocabulary": self.vocabulary,
             "rules": self.rules,
             "examples": self.examples,
         }
@@ -609,6 +612,29 @@ class _FileReader:
                         origin=Origin(file=file, line=n),
                     )
                 )
+
+    def vocabulary(self, value: object) -> None:
+        """``[vocabulary]``: per language, word lists of the team's own documents (what
+        `guard harvest --out` writes as vocabulary.txt). Not protected terms: evidence that
+        a word belongs to the domain, read by the frequency rules."""
+        if not self.want("vocabulary", value, dict, "a table"):
+            return
+        assert isinstance(value, dict)
+        for tag, files_value in value.items():
+            key = f"vocabulary.{tag}"
+            lang = canonical_lang(tag)
+            if lang is None:
+                self.err(key, f"'{tag}' is not a language tag (BCP 47, e.g. en or de-CH)")
+                continue
+            files = self.str_list(key, files_value, allow_str=True)
+            words = self.layer.vocabulary.setdefault(lang, set())
+            for i, rel in enumerate(files or []):
+                item_key = key if isinstance(files_value, str) else f"{key}[{i}]"
+                path = self.contained(item_key, rel)
+                if path is None:
+                    continue
+                for _, text in self.list_file(path, item_key):
+                    words.add(normalize_key(collapse_spaces(text), fold=True))
 
     # -- patterns
 
@@ -1456,6 +1482,7 @@ def resolve(
     blocked: list[PairEntry] = []
     allowed: list[PairEntry] = []
     critical: list[TermEntry] = []
+    vocabulary: dict[str, set[str]] = {}
     examples: list[Example] = []
     parent_examples: list[Example] = []
     files: list[str] = []
@@ -1479,6 +1506,8 @@ def resolve(
         blocked.extend(layer.blocked)
         allowed.extend(layer.allowed)
         critical.extend(layer.critical)
+        for lang, words in layer.vocabulary.items():
+            vocabulary.setdefault(lang, set()).update(words)
         is_named = any(layer is n for n in named)
         (examples if is_named else parent_examples).extend(layer.examples)
     if overrides:
@@ -1507,6 +1536,7 @@ def resolve(
         blocked=tuple(blocked),
         allowed=tuple(allowed),
         critical=tuple(critical),
+        vocabulary=MappingProxyType({k: frozenset(v) for k, v in vocabulary.items()}),
         examples=tuple(examples),
         parent_examples=tuple(parent_examples),
         meta=MappingProxyType(meta),

@@ -9,6 +9,7 @@ from __future__ import annotations
 import enum
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
+from types import MappingProxyType
 from typing import TYPE_CHECKING
 
 import regex
@@ -172,6 +173,7 @@ class CompiledRuleset:
         "patterns",
         "rules",
         "terms",
+        "vocabulary",
     )
 
     def __init__(
@@ -191,6 +193,7 @@ class CompiledRuleset:
         examples: tuple[Example, ...],
         matcher: object,
         lexicons: object,
+        vocabulary: Mapping[str, frozenset[str]] | None = None,
     ) -> None:
         self.name = name
         self.description = description
@@ -206,6 +209,7 @@ class CompiledRuleset:
         self.examples = examples
         self._matcher = matcher
         self._lexicons = lexicons
+        self.vocabulary: Mapping[str, frozenset[str]] = _with_primary_tags(vocabulary or {})
 
     @property
     def default_language(self) -> str:
@@ -222,3 +226,19 @@ class CompiledRuleset:
     def lexicon(self, lang: str) -> Lexicon | None:
         """Word frequencies for ``lang``, or None when wordfreq lacks the language."""
         return self._lexicons.get(lang)  # type: ignore[attr-defined,no-any-return]
+
+
+def _with_primary_tags(
+    vocabulary: Mapping[str, frozenset[str]],
+) -> Mapping[str, frozenset[str]]:
+    """The vocabulary by language tag, each list also under its primary subtag when no
+    list has that tag, so that text tagged "en-GB" finds the words listed for "en" and
+    text tagged "en" those listed for "en-GB"; lists for the same primary subtag merge."""
+    out = dict(vocabulary)
+    merged: dict[str, set[str]] = {}
+    for tag, words in vocabulary.items():
+        primary = tag.split("-", 1)[0]
+        if primary not in vocabulary:
+            merged.setdefault(primary, set()).update(words)
+    out.update({k: frozenset(v) for k, v in merged.items()})
+    return MappingProxyType(out)

@@ -31,6 +31,13 @@ The result is a draft for review. A typo repeated in the corpus can rank high as
 harvested list reduces risk but does not remove it: local rules and licensed
 professionals decide what must be protected.
 
+``vocabulary`` lists every word the documents use, common ones too, with its count; a
+ruleset names that list under ``[vocabulary]`` (per language) as evidence of what the
+domain writes: the ``real-word`` rule then treats a listed word (or the long listed word a
+word begins with) as real in the domain and lets a frequent-misspelling fix land only on
+a word the documents use. Unlike a
+protected term, a vocabulary word is never protected by itself.
+
 ``rank_attacked`` reorders candidates by how often a speller actually changed them in a
 batch of proposals; ``write_drafts`` writes term lists in the format of
 docs/rulesets.md. Nothing here prints; reading files is limited to ``read_corpus`` and
@@ -67,13 +74,17 @@ __all__ = [
     "harvest",
     "rank_attacked",
     "read_corpus",
+    "vocabulary",
     "wordfreq_lang",
     "write_drafts",
+    "write_vocabulary",
 ]
 
 DEFAULT_MAX_ZIPF = 4.5
 DEFAULT_MIN_COUNT = 2
 DEFAULT_MIN_G2 = 10.83  # chi-square, 1 degree of freedom, p < 0.001
+DEFAULT_VOCABULARY_MIN_COUNT = 1
+VOCABULARY_FILE = "vocabulary.txt"
 CONTEXT_CHARS = 40
 CORPUS_SUFFIXES: tuple[str, ...] = (".txt", ".md", ".rst", ".jsonl")
 
@@ -540,6 +551,62 @@ def wordfreq_lang(tag: str) -> str:
         shown = ", ".join(sorted(known)[:2])
         raise GuardError(f"no word frequencies for language {tag!r} (wordfreq has {shown}, ...)")
     return primary
+
+
+# --- the domain vocabulary -----------------------------------------------------------
+
+_PART_SPLIT = regex.compile(r"[\-‐‑'’]")
+
+
+def vocabulary(
+    docs: Iterable[tuple[str, str]], *, min_count: int = DEFAULT_VOCABULARY_MIN_COUNT
+) -> list[tuple[str, int]]:
+    """Every word of ``docs`` with its count, most frequent first: the domain's vocabulary.
+
+    A word is a word token of two letters or more, case folded; a hyphenated or elided
+    word counts as its parts too ("NULL-Zeiger" adds "null" and "zeiger"), since the
+    rules judge a hyphenated word by its changed part. Literal tokens (codes, paths,
+    flags) are left to the term lists. ``min_count`` is the fewest occurrences a word
+    needs: 1 by default, since the documents are the team's own, taken as written.
+
+    >>> vocabulary([("a", "Reset the QSP-Panel. The panel blinks.")])
+    [('panel', 2), ('the', 2), ('blinks', 1), ('qsp', 1), ('qsp-panel', 1), ('reset', 1)]
+    """
+    if min_count < 1:
+        raise ValueError("min_count must be at least 1")
+    counts: Counter[str] = Counter()
+    for _, text in docs:
+        for tok in tokenize(text):
+            if tok.kind is not TokenKind.WORD or _letters(tok.text) < 2:
+                continue
+            word = tok.text.casefold()
+            counts[word] += 1
+            if _PART_SPLIT.search(word):
+                for part in _PART_SPLIT.split(word):
+                    if _letters(part) >= 2:
+                        counts[part] += 1
+    found = [(w, n) for w, n in counts.items() if n >= min_count and _expressible(w)]
+    found.sort(key=lambda item: (-item[1], item[0]))
+    return found
+
+
+def write_vocabulary(
+    words: Iterable[tuple[str, int]], out_dir: str | os.PathLike[str], *, overwrite: bool = False
+) -> Path:
+    """Write ``out_dir/vocabulary.txt``: one word a line, its count as a comment.
+    An existing file is refused unless ``overwrite``."""
+    path = Path(out_dir) / VOCABULARY_FILE
+    if path.exists() and not overwrite:
+        raise GuardError(f"draft lists exist already: {path}")
+    path.parent.mkdir(parents=True, exist_ok=True)
+    lines = [
+        "# Domain vocabulary written by `guard harvest`: every word of the corpus, most\n"
+        "# frequent first, with its count. Name it under [vocabulary] in a ruleset; it\n"
+        "# holds whatever typos the corpus holds, so review the rare end.\n"
+    ]
+    lines += [f"{w}  # count={n}\n" for w, n in words]
+    path.write_text("".join(lines), encoding="utf-8")
+    return path
 
 
 # --- ranking by attacks ---------------------------------------------------------------

@@ -86,6 +86,8 @@ CASES = [
     ("clipped-word", "reindex the table", "index the table", "en", None, Action.VETO),
     ("compound-word", "we recieve it", "we receive it", "en", None, None),
     ("compound-word", "load the userlist", "load the setlist", "en", None, Action.VETO),
+    ("split-word", "see thereport now", "see the report now", "en", None, None),
+    ("split-word", "read the nodelist", "read the node lost", "en", None, Action.VETO),
     ("mentioned-word", "we recieve it. Then", "we receive it. Then", "en", None, None),
     ("mentioned-word", "run 'mandb' again", "run 'mand' again", "en", None, Action.VETO),
     ("rarer-target", "we recieve it", "we receive it", "en", None, None),

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 from pathlib import Path
 
 import pytest
@@ -19,14 +20,16 @@ from scipy.stats import chi2_contingency  # type: ignore[import-untyped]
 
 from guard.cli.main import main
 from guard.errors import GuardError, RecordError
-from guard.ruleset.load import strip_comment
+from guard.ruleset.load import load_sources, strip_comment
 from guard.vocab.harvest import (
+    DEFAULT_MAX_ZIPF,
     Candidate,
     Kind,
     draft_line,
     harvest,
     rank_attacked,
     read_corpus,
+    vocabulary,
     write_drafts,
 )
 
@@ -379,6 +382,7 @@ def test_cli_jsonl_proposals_and_drafts(tmp_path: Path, capsys: pytest.CaptureFi
     assert err.splitlines() == [
         f"guard harvest: wrote {out_dir / 'terms' / 'acronym.txt'}",
         f"guard harvest: wrote {out_dir / 'terms' / 'identifier.txt'}",
+        f"guard harvest: wrote {out_dir / 'vocabulary.txt'}",
         "guard harvest: 3 documents, 2 candidates, 2 shown",
     ]
 
@@ -424,3 +428,44 @@ def test_german_nouns_are_terms_not_names() -> None:
         ("b", "then you save the Datei before the server stops"),
     ]
     assert {c.term: c.kind.value for c in harvest(english, lang="en")}["Datei"] == "name"
+
+
+def test_vocabulary_counts_every_word_common_ones_too() -> None:
+    words = dict(vocabulary(QUILLMATE))
+    text = " ".join(t for _, t in QUILLMATE)
+    # The count a plain whole-word search gives (common practice, no source); "the" is
+    # among the commonest English words (wordfreq), which the term lists never hold.
+    assert words["the"] == len(re.findall(r"\bthe\b", text, flags=re.IGNORECASE))
+    assert wordfreq.zipf_frequency("the", "en") > DEFAULT_MAX_ZIPF
+    assert words["dock"] == len(re.findall(r"\bdock\b", text, flags=re.IGNORECASE))
+    # literal tokens are the term lists' business
+    assert "qm-4410" not in words and "sync_window" not in words
+
+
+def test_vocabulary_counts_hyphenated_words_and_their_parts() -> None:
+    words = dict(vocabulary([("a", "Der NULL-Zeiger und der Zeiger.")]))
+    assert words["null-zeiger"] == 1 and words["null"] == 1 and words["zeiger"] == 2
+    assert dict(vocabulary([("a", "Der NULL-Zeiger und der Zeiger.")], min_count=2)) == {
+        "der": 2,
+        "zeiger": 2,
+    }
+    with pytest.raises(ValueError):
+        vocabulary([], min_count=0)
+
+
+def test_cli_vocabulary_reads_back_as_a_ruleset(tmp_path: Path) -> None:
+    out_dir = tmp_path / "drafts"
+    corpus = _corpus(tmp_path)
+    assert main(["harvest", str(corpus), "--lang", "en", "--out", str(out_dir)]) == 0
+    ruleset = out_dir / "ruleset.toml"
+    ruleset.write_text(
+        '[ruleset]\nname = "q"\nextends = ["base"]\n\n[vocabulary]\nen = "vocabulary.txt"\n',
+        encoding="utf-8",
+    )
+    loaded = load_sources([ruleset])
+    assert set(loaded.vocabulary["en"]) == {w for w, _ in vocabulary(QUILLMATE)}
+    bare = tmp_path / "bare"
+    assert (
+        main(["harvest", str(corpus), "--lang", "en", "--out", str(bare), "--no-vocabulary"]) == 0
+    )
+    assert not (bare / "vocabulary.txt").exists()
