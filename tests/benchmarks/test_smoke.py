@@ -126,3 +126,17 @@ def test_workload_is_the_same_from_one_build_to_the_next() -> None:
     assert all(p.source != p.proposal for p in a)
     assert all(3 <= len(p.source.split()) <= 8 for p in a)
     assert any(p.touches_term for p in a) and not all(p.touches_term for p in a)
+
+
+def test_the_instruction_count_child_checks_the_pairs_it_is_given(tmp_path: Path) -> None:
+    # instructions.py runs this child under valgrind (minutes, so not here); the child
+    # itself must keep working: load, warm up, check changed and unchanged pairs
+    pairs = tmp_path / "pairs.json"
+    pairs.write_text(json.dumps([["teh pump", "the pump"], ["bilge pmup", "bilge pump"]] * 3))
+    for what in ("none", "changed", "unchanged"):
+        run = subprocess.run(
+            [sys.executable, str(BENCH / "instructions.py"), "--inner", "base", str(pairs),
+             what, "2"],
+            capture_output=True, text=True, timeout=300, check=False,
+        )  # fmt: skip
+        assert run.returncode == 0, run.stderr
