@@ -37,7 +37,8 @@ def decide(
             overridden = tuple(f for f in own if f.tier is not Tier.HARD)
         else:
             kept, overridden = own, ()
-        verdict = Verdict.worst(_VERDICT_OF[f.action] for f in kept)
+        # most rewrites draw no finding: accepted without looking further
+        verdict = Verdict.worst([_VERDICT_OF[f.action] for f in kept]) if kept else Verdict.ACCEPT
         out.append(
             RewriteVerdict(
                 rewrite=rw,
@@ -55,4 +56,6 @@ _VERDICT_OF = {action: Verdict.of(action) for action in Action}  # a note counts
 
 def pair_verdict(verdicts: Sequence[RewriteVerdict]) -> Verdict:
     """The worst verdict of a pair's rewrites (accept when there are none)."""
+    if len(verdicts) == 1:  # the usual pair: one rewrite
+        return verdicts[0].verdict
     return Verdict.worst(v.verdict for v in verdicts)

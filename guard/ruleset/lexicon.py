@@ -58,7 +58,7 @@ class Lexicon:
     (4.5, 0.0, True)
     """
 
-    __slots__ = ("_bands", "_language", "_memo", "_words", "lang", "zipf")
+    __slots__ = ("_ascii_lower", "_bands", "_language", "_memo", "_words", "lang", "zipf")
 
     zipf: Callable[[str], float]
     """Zipf frequency of a word (case folded as wordfreq folds); 0.0 when unknown.
@@ -70,6 +70,7 @@ class Lexicon:
         if len(words) != len(bands):
             raise ValueError("words and bands differ in length")
         self.lang = lang
+        self._ascii_lower = lang not in _NONASCII_FOLD_LANGS  # ASCII folds by lower()
         self._language = _language(lang)
         self._words = words  # sorted, unique
         self._bands = bands
@@ -88,7 +89,7 @@ class Lexicon:
         return len(self._words)
 
     def _key(self, word: str) -> str:
-        if word.isascii() and self.lang not in _NONASCII_FOLD_LANGS:
+        if word.isascii() and self._ascii_lower:
             return word.lower()
         from wordfreq.preprocess import preprocess_text
 
@@ -105,8 +106,14 @@ class Lexicon:
         return None
 
     def _zipf(self, word: str) -> float:
-        band = self._band(word)
-        return 0.0 if band is None else _ZIPF_OF_BAND[band]
+        # _band's steps in one frame, with _key's ASCII case inline: this runs for every
+        # word the memo has not seen, a typo most often
+        key = word.lower() if word.isascii() and self._ascii_lower else self._key(word)
+        words = self._words
+        i = bisect_left(words, key)
+        if i < len(words) and words[i] == key:
+            return _ZIPF_OF_BAND[self._bands[i]]
+        return 0.0
 
     def known(self, word: str) -> bool:
         """True when wordfreq lists ``word`` in this language at all."""
