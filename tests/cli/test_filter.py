@@ -163,6 +163,9 @@ def test_ctrl_c_while_streaming_exits_130_after_saying_what_was_done(ruleset: st
             first = proc.stdout.readline()
             _waiting_for_input(proc.pid)
             proc.send_signal(signal.SIGINT)
+            # stdin stays open until it exits: closing it (communicate) could race the
+            # signal with an end of input, and a finished run says nothing of an interrupt
+            proc.wait(timeout=120)
             out, err = proc.communicate(timeout=120)
         finally:
             proc.kill()
