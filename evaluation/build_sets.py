@@ -21,12 +21,20 @@ Each output line names its source package and gettext domain, for provenance.
 PROVENANCE.md is written beside the sets, with each package's licence as its Debian
 copyright file states it.
 
+The harvest corpus (``--harvest-only``) is the rest of the same catalogs: every kept line
+of every domain that is not among the first ``--exclude`` (900) lines of the committed set
+of its language, which the evaluation scores (0-599) or tunes on (600-899). It stands for
+a team's own documents, the text `guard harvest` reads, and is written gzipped to
+``evaluation/harvest/<lang>.jsonl.gz`` with its own PROVENANCE.md.
+
     python evaluation/build_sets.py [--per-lang 1000] [--out evaluation/sets]
+    python evaluation/build_sets.py --harvest-only [--exclude 900] [--harvest evaluation/harvest]
 """
 
 from __future__ import annotations
 
 import argparse
+import gzip
 import hashlib
 import json
 import re
@@ -166,13 +174,59 @@ def sample(domains: dict[str, list[str]], n: int, lang: str) -> list[tuple[str, 
     return picked
 
 
+def write_harvest(
+    ranked: dict[str, dict[str, list[str]]],
+    paths: dict[str, Path],
+    sets: Path,
+    out: Path,
+    exclude: int,
+) -> None:
+    """The harvest corpus: each language's lines outside the first ``exclude`` of its set."""
+    out.mkdir(parents=True, exist_ok=True)
+    packages: dict[str, str] = {}
+    used: dict[str, dict[str, int]] = defaultdict(lambda: defaultdict(int))
+    for lang in ("en", *LANGS):
+        rows = (sets / f"{lang}.jsonl").read_text(encoding="utf-8").splitlines()
+        kept_out = {json.loads(r)["text"] for r in rows[:exclude]}
+        n = 0
+        with gzip.open(out / f"{lang}.jsonl.gz", "wt", encoding="utf-8", compresslevel=9) as fh:
+            for domain, lines in ranked[lang].items():
+                for line in lines:
+                    if line in kept_out:
+                        continue
+                    if domain not in packages:
+                        packages[domain] = package_of(paths[domain])
+                    n += 1
+                    used[domain][lang] += 1
+                    record = {"id": f"{lang}-h{n:05d}", "text": line, "lang": lang,
+                              "package": packages[domain], "domain": domain}  # fmt: skip
+                    fh.write(json.dumps(record, ensure_ascii=False) + "\n")
+        print(f"{lang}: {n} harvest lines")
+    write_provenance(out / "PROVENANCE.md", packages, used, what="harvest corpus")
+
+
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     ap.add_argument("--per-lang", type=int, default=1000)
     ap.add_argument("--out", type=Path, default=Path(__file__).parent / "sets")
+    ap.add_argument(
+        "--harvest-only",
+        action="store_true",
+        help="write the harvest corpus beside the committed sets, not the sets",
+    )
+    ap.add_argument(
+        "--exclude",
+        type=int,
+        default=900,
+        help="lines of each set the harvest corpus leaves out (default 900)",
+    )
+    ap.add_argument("--harvest", type=Path, default=Path(__file__).parent / "harvest")
     args = ap.parse_args()
-    args.out.mkdir(parents=True, exist_ok=True)
     ranked, paths = collect()
+    if args.harvest_only:
+        write_harvest(ranked, paths, args.out, args.harvest, args.exclude)
+        return 0
+    args.out.mkdir(parents=True, exist_ok=True)
     packages: dict[str, str] = {}
     used: dict[str, dict[str, int]] = defaultdict(lambda: defaultdict(int))
     for lang in ("en", *LANGS):
@@ -195,7 +249,9 @@ def main() -> int:
     return 0
 
 
-def write_provenance(path: Path, packages: dict[str, str], used: dict[str, dict[str, int]]) -> None:
+def write_provenance(
+    path: Path, packages: dict[str, str], used: dict[str, dict[str, int]], what: str = "sets"
+) -> None:
     langs = ("en", *LANGS)
     rows = []
     for domain in sorted(used):
@@ -203,8 +259,8 @@ def write_provenance(path: Path, packages: dict[str, str], used: dict[str, dict[
         counts = " | ".join(str(used[domain].get(lang, 0)) for lang in langs)
         rows.append(f"| {pkg} | {domain} | {licence_of(pkg)} | {counts} |")
     path.write_text(
-        "# Provenance of the evaluation sets\n\n"
-        "Every line of `en.jsonl`, `de.jsonl`, `fr.jsonl`, `es.jsonl` and `nl.jsonl` is a line of\n"
+        f"# Provenance of the evaluation {what}\n\n"
+        f"Every line of the {what} (`en`, `de`, `fr`, `es` and `nl`) is a line of\n"
         "a program message as installed on the build machine by a Debian package: the English\n"
         "original (gettext msgid) for `en`, the package's translation (msgstr) for the others,\n"
         "read from `/usr/share/locale/<lang>/LC_MESSAGES/<domain>.mo` by\n"

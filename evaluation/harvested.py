@@ -1,9 +1,9 @@
 """The second accuracy target: the base ruleset plus terms harvested from other texts of
 the same domain.
 
-For each language, the messages of evaluation/sets/<lang>.jsonl from line ``--first``
-(600: after the tuning part, lines 0-299, and the held-out part, 300-599, that run.py
-scores) are a team's "own documents": `guard harvest` reads them,
+For each language, the harvest corpus evaluation/harvest/<lang>.jsonl.gz (the rest of the
+same programs' message catalogs: no line run.py scores or tunes on, lines 0-899 of the
+sets; see build_sets.py) is a team's "own documents": `guard harvest` reads them,
 the draft term lists and the vocabulary (every word of the documents, per language) it
 writes are used as they are (no hand review, so this is the floor of what a team gets),
 and a ruleset extending base protects the terms and names the vocabulary. Then run.py
@@ -16,6 +16,7 @@ scores either part with that ruleset:
 from __future__ import annotations
 
 import argparse
+import gzip
 import json
 import sys
 from pathlib import Path
@@ -32,11 +33,14 @@ CASE = {"acronym": "exact", "code": "exact", "identifier": "exact", "name": "exa
 
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument(
-        "--first", type=int, default=600, help="first line harvested (run.py scores 0-599)"
-    )
     ap.add_argument("--min-count", type=int, default=1)
     ap.add_argument("--out", type=Path, default=HERE / "harvested")
+    ap.add_argument(
+        "--corpus",
+        type=Path,
+        default=HERE / "harvest",
+        help="the folder of <lang>.jsonl.gz to harvest",
+    )
     args = ap.parse_args()
     out: Path = args.out
     blocks = [
@@ -50,8 +54,8 @@ def main() -> int:
     ]
     vocab_lines = ["[vocabulary]"]
     for lang in LANGS:
-        lines = (HERE / "sets" / f"{lang}.jsonl").read_text(encoding="utf-8").splitlines()
-        docs = [(d["id"], d["text"]) for d in map(json.loads, lines[args.first :])]
+        with gzip.open(args.corpus / f"{lang}.jsonl.gz", "rt", encoding="utf-8") as fh:
+            docs = [(d["id"], d["text"]) for d in map(json.loads, fh)]
         found = harvest(docs, lang=lang, min_count=args.min_count)
         files = write_drafts(found, out / lang, overwrite=True)
         words = vocabulary(docs)

@@ -16,11 +16,12 @@ longer: pyspellchecker at distance 2 spent about 20 minutes on 300 German lines 
 two-core machine.
 Each set has three parts: lines 0-299 are the tuning part (the default; the base
 ruleset's thresholds were chosen on it), lines 300-599 the held-out part (``--start 300``,
-scored only to report, never to choose a setting), lines 600 on the harvest part.
+scored only to report, never to choose a setting), lines 600-899 a second tuning sample.
 With ``--harvest``, each language is also scored with a second ruleset: base plus the
-terms and the vocabulary ``guard harvest`` draws from the harvest part (``--harvest-from``), which
-neither scored part overlaps: other text of the same domain, as a team would harvest its own
-documents. The draft lists are used as harvested, unreviewed.
+terms and the vocabulary ``guard harvest`` draws from the harvest corpus
+(evaluation/harvest/<lang>.jsonl.gz: the rest of the same catalogs, none of lines 0-899),
+which no scored line overlaps: other text of the same domain, as a team would harvest its
+own documents. The draft lists are used as harvested, unreviewed.
 
 The scored records are written to evaluation/scored/<lang>.<speller>.jsonl (the held-out
 part to <lang>.<speller>.from300.jsonl), so that one
@@ -38,6 +39,7 @@ Usage:
 from __future__ import annotations
 
 import argparse
+import gzip
 import hashlib
 import json
 import os
@@ -64,8 +66,8 @@ TUNE = 0
 """Lines 0-299 of each set: the part the base ruleset's thresholds were tuned on."""
 HELD_OUT = 300
 """Lines 300-599: the held-out part, scored only to report (``--start 300``)."""
-HARVEST_FROM = 600
-"""Lines 600 on: a team's "own documents" for ``--harvest``, apart from both parts."""
+HARVEST = HERE / "harvest"
+"""<lang>.jsonl.gz: a team's "own documents" for ``--harvest``, apart from every part."""
 WORK = HERE / "scored"
 
 
@@ -120,19 +122,18 @@ def propose(job: tuple[str, str, list[str]]) -> tuple[str, str, dict[str, str], 
     return speller, lang, {s: cache[_key(s)] for s in sources}, time.perf_counter() - start
 
 
-def harvest_ruleset(lang: str, first: int) -> Path:
-    """Write a ruleset (base plus the terms harvested from the set's lines from ``first``)."""
+def harvest_ruleset(lang: str, corpus: Path) -> Path:
+    """Write a ruleset: base plus the terms harvested from ``corpus/<lang>.jsonl.gz``."""
     from guard.vocab.harvest import harvest, vocabulary, write_drafts, write_vocabulary
 
-    path = HERE / "sets" / f"{lang}.jsonl"
-    lines = [json.loads(x) for x in path.read_text(encoding="utf-8").splitlines()]
-    docs = [(str(d["id"]), str(d["text"])) for d in lines[first:]]
+    with gzip.open(corpus / f"{lang}.jsonl.gz", "rt", encoding="utf-8") as fh:
+        docs = [(str(d["id"]), str(d["text"])) for d in map(json.loads, fh)]
     folder = WORK / "harvest" / lang
     written = write_drafts(harvest(docs, lang=lang), folder, overwrite=True)
     vocab = write_vocabulary(vocabulary(docs), folder, overwrite=True)
     parts = [
         f'[ruleset]\nname = "harvest-{lang}"\n'
-        f'description = "base plus terms harvested from held-out {lang} messages"\n'
+        f'description = "base plus terms harvested from other {lang} messages"\n'
         'extends = ["base"]\n'
         f'languages = ["{lang}"]\n'
     ]
@@ -220,10 +221,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         "--harvest", action="store_true", help="also score with terms harvested per language"
     )
     ap.add_argument(
-        "--harvest-from",
-        type=int,
-        default=HARVEST_FROM,
-        help=f"harvest the lines from this one on (default {HARVEST_FROM})",
+        "--harvest-corpus",
+        type=Path,
+        default=HARVEST,
+        help="the folder of <lang>.jsonl.gz that --harvest reads (default evaluation/harvest)",
     )
     args = ap.parse_args(argv)
     langs = [x for x in args.langs.split(",") if x]
@@ -249,7 +250,7 @@ def main(argv: Sequence[str] | None = None) -> int:
             )  # fmt: skip
     if args.harvest:
         for lang in langs:
-            harvested = Guard(load_ruleset(*refs, harvest_ruleset(lang, args.harvest_from)))
+            harvested = Guard(load_ruleset(*refs, harvest_ruleset(lang, args.harvest_corpus)))
             for speller in spellers:
                 results[(lang, f"{speller} +harvest")] = score_one(
                     harvested, lang, speller, sets[lang], proposals[(lang, speller)],
