@@ -421,6 +421,8 @@ def _by_opcodes(
         new_start = b_spans[j1][0] if j1 < j2 else _position(b_spans, j1, start)
         new_end = b_spans[j2 - 1][1] if j1 < j2 else new_start
         old, new = source[old_start:old_end], proposal[new_start:new_end]
+        if old == new:
+            continue  # the same text cut into other tokens by what precedes it: no change
         kind, refinement = _classify(old, new, old_spans, new_spans)
         rewrites.append(
             Rewrite(

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import random
 
-from hypothesis import given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
 from guard.align import align, apply
@@ -127,6 +127,9 @@ def pairs(draw: st.DrawFn) -> tuple[str, str]:
 
 @settings(max_examples=10_000, deadline=None)
 @given(pairs())
+# found by this test: a combining mark that takes the place of a space glues the next
+# token to the previous one, so "5mg/kg" is cut into other tokens on the two sides
+@example(("pumpValvethe--\r\n-os.path! 5mg/kg", "upmpValvethe--\r\n-os.path!\u03015mg/kg"))
 def test_alignment_round_trips(pair: tuple[str, str]) -> None:
     source, proposal = pair
     rewrites = align(source, proposal)
