@@ -29,6 +29,9 @@ of ``vocabulary-part-letters`` letters or more, which the rewrite changes
 ("versionierten" -> "pensionierten" takes "version" apart), is a domain word changed
 too: the head of a derived or compound word the team writes; a typo seldom makes a long
 domain word of a word's start, and a fix of a typo further on leaves the head whole.
+Documents hold typos too: a vocabulary word the documents use ``vocabulary-typo-gain``
+powers of ten less often than the word a one-slip fix writes ("fpr", 7 times, beside
+"für", thousands) is read as their own misspelling, not a domain word.
 
 Accepts: "teh" -> "the" (Zipf gain above min-gain). Vetoes: "kernel" -> "kennel".
 """
@@ -45,7 +48,7 @@ from guard.rules.words import (
     within_edits,
     zipf,
 )
-from guard.ruleset.model import RuleSettings
+from guard.ruleset.model import RuleSettings, WordCounts
 from guard.text.normalize import normalize_key
 
 NAME = "real-word"
@@ -64,19 +67,20 @@ def _split_of_known_word(rw: Rewrite, ctx: PairContext, settings: RuleSettings) 
     return z if z >= floor else None
 
 
-def _near(rw: Rewrite, settings: RuleSettings) -> bool:
-    """The rewrite is within ``gain-max-distance`` edits (case-folded, optimal string
-    alignment), the reach of a frequent misspelling."""
+def _near(old: str, new: str, settings: RuleSettings) -> bool:
+    """``old`` and ``new`` are within ``gain-max-distance`` edits (case-folded, optimal
+    string alignment), the reach of a frequent misspelling."""
     most = settings.options["gain-max-distance"]
     assert isinstance(most, int)
     if most < 0:
         return True  # no limit
-    return within_edits(rw.old, rw.new, most)
+    return within_edits(old, new, most)
 
 
-def _vocabulary_word(rw: Rewrite, vocab: frozenset[str]) -> str | None:
+def _vocabulary_word(rw: Rewrite, vocab: WordCounts, settings: RuleSettings) -> str | None:
     """The changed word (or changed part of a hyphenated word) of the source that the
-    domain vocabulary lists, if any; the whole word when the speller splits it."""
+    domain vocabulary lists, if any; the whole word when the speller splits it. Not a
+    word the documents themselves seem to misspell (see :func:`_documents_typo`)."""
     old = content_tokens(rw.old_tokens)
     new = content_tokens(rw.new_tokens)
     if len(old) != 1 or not new:
@@ -84,13 +88,31 @@ def _vocabulary_word(rw: Rewrite, vocab: frozenset[str]) -> str | None:
     if len(new) > 1:
         word = old[0].text
         return word if normalize_key(word, fold=True) in vocab else None
-    for part, _ in changed_parts(old[0].text, new[0].text):
-        if normalize_key(part, fold=True) in vocab:
+    for part, replaced in changed_parts(old[0].text, new[0].text):
+        if normalize_key(part, fold=True) in vocab and not _documents_typo(
+            part, replaced, vocab, settings
+        ):
             return part
     return None
 
 
-def _vocabulary_head(rw: Rewrite, vocab: frozenset[str], least: int) -> str | None:
+def _documents_typo(part: str, replaced: str, vocab: WordCounts, settings: RuleSettings) -> bool:
+    """Whether the documents' own counts say ``part`` is their misspelling of ``replaced``:
+    a slip away (``gain-max-distance``) and ``vocabulary-typo-gain`` powers of ten rarer in
+    them. Documents hold typos as web text does ("dsr" once beside "der" six thousand
+    times), and the word they write all the time is what a one-slip neighbour met once
+    was meant to be; that is the noisy-channel odds of the Zipf-gain exemption, with the
+    team's counts for the frequencies. A word listed without a count is trusted whole."""
+    count = vocab[normalize_key(part, fold=True)]
+    if count == 0:
+        return False
+    gain = settings.options["vocabulary-typo-gain"]
+    assert isinstance(gain, float)
+    target = vocab.get(normalize_key(replaced, fold=True), 0)
+    return target >= count * 10**gain and _near(part, replaced, settings)
+
+
+def _vocabulary_head(rw: Rewrite, vocab: WordCounts, least: int) -> str | None:
     """A word of the domain vocabulary, ``least`` letters or more, that the changed word
     (or changed part) of the source begins with and what replaces it does not: the
     speller rewrote the known head of a derived or compound word ("versionierten" begins
@@ -113,7 +135,7 @@ def _vocabulary_head(rw: Rewrite, vocab: frozenset[str], least: int) -> str | No
     return None
 
 
-def _outside_vocabulary(rw: Rewrite, vocab: frozenset[str]) -> bool:
+def _outside_vocabulary(rw: Rewrite, vocab: WordCounts) -> bool:
     """Whether a word the rewrite writes (a changed part, for a hyphenated word) is
     missing from the domain vocabulary."""
     old = content_tokens(rw.old_tokens)
@@ -126,7 +148,7 @@ def _outside_vocabulary(rw: Rewrite, vocab: frozenset[str]) -> bool:
 
 
 def _vocabulary_finding(
-    rw: Rewrite, ctx: PairContext, settings: RuleSettings, vocab: frozenset[str]
+    rw: Rewrite, ctx: PairContext, settings: RuleSettings, vocab: WordCounts
 ) -> Finding | None:
     """The objection when the rewrite changes a word of the domain vocabulary, or the
     vocabulary word a source word begins with."""
@@ -134,7 +156,7 @@ def _vocabulary_finding(
         "'{word}' is a word of the domain's own documents ({lang} vocabulary); "
         "a speller that changes it does not know it"
     )
-    word = _vocabulary_word(rw, vocab)
+    word = _vocabulary_word(rw, vocab, settings)
     if word is None:
         least = settings.options["vocabulary-part-letters"]
         assert isinstance(least, int)
@@ -191,7 +213,7 @@ def check(rw: Rewrite | None, ctx: PairContext, settings: RuleSettings) -> Findi
     if z_old < min_zipf:
         return None
     z_new = phrase_zipf(ctx, rw.new_tokens) if content_tokens(rw.new_tokens) else 0.0
-    if z_new - z_old >= min_gain and _near(rw, settings):
+    if z_new - z_old >= min_gain and _near(rw.old, rw.new, settings):
         floor = settings.options["vocabulary-min-zipf"]
         assert isinstance(floor, float)
         if vocab is None or z_old < floor or not _outside_vocabulary(rw, vocab):
@@ -265,6 +287,14 @@ RULE = Rule(
             doc="with a domain vocabulary, a source word that begins with a vocabulary word "
             "of at least this many letters, which the rewrite changes, is a domain word "
             "changed (0: off)",
+            per_lang=True,
+        ),
+        "vocabulary-typo-gain": OptionSpec(
+            default=2.5,
+            type=float,
+            doc="with a counted domain vocabulary, a vocabulary word that the documents use "
+            "this many powers of ten less often than the word a fix within gain-max-distance "
+            "writes is read as their own misspelling, not a domain word (99: trust them all)",
             per_lang=True,
         ),
         "split-min-zipf": OptionSpec(

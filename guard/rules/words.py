@@ -16,6 +16,7 @@ from guard.rules.base import OptionSpec, PairContext
 
 if TYPE_CHECKING:
     from guard.ruleset.lexicon import Lexicon
+    from guard.ruleset.model import WordCounts
 
 PATTERN_TIMEOUT_S = 0.05
 """Time limit for one ruleset pattern on one text (the `regex` module enforces it)."""
@@ -156,10 +157,10 @@ def domain_known(ctx: PairContext, text: str) -> bool:
     return False
 
 
-def domain_vocabulary(ctx: PairContext) -> frozenset[str] | None:
-    """The folded words of the team's own documents in the pair's language (the
-    ruleset's ``[vocabulary]``), or None when the ruleset lists none for it: then no rule
-    may read a word's absence from it as evidence."""
+def domain_vocabulary(ctx: PairContext) -> WordCounts | None:
+    """The folded words of the team's own documents in the pair's language, with their
+    counts (the ruleset's ``[vocabulary]``), or None when the ruleset lists none for it:
+    then no rule may read a word's absence from it as evidence."""
     vocab = ctx.ruleset.vocabulary
     if not vocab:  # most rulesets: no vocabulary at all
         return None

@@ -53,6 +53,8 @@ from guard.ruleset.model import (
     RuleSettings,
     Settings,
     TermEntry,
+    WordCounts,
+    merge_counts,
 )
 from guard.ruleset.terms import TermTable, collapse_spaces, first_pieces
 from guard.text.normalize import NormalizedText, hidden_characters, normalize_key
@@ -116,7 +118,7 @@ class ResolvedRuleset:
     blocked: tuple[PairEntry, ...]
     allowed: tuple[PairEntry, ...]
     critical: tuple[TermEntry, ...]
-    vocabulary: Mapping[str, frozenset[str]]  # language -> folded words of its documents
+    vocabulary: Mapping[str, WordCounts]  # language -> folded words of its documents
     examples: tuple[Example, ...]
     parent_examples: tuple[Example, ...]
     meta: Mapping[str, Settings]
@@ -243,7 +245,7 @@ class _Layer:
     blocked: list[PairEntry] = field(default_factory=list)
     allowed: list[PairEntry] = field(default_factory=list)
     critical: list[TermEntry] = field(default_factory=list)
-    vocabulary: dict[str, set[str]] = field(default_factory=dict)
+    vocabulary: dict[str, dict[str, int]] = field(default_factory=dict)
     examples: list[Example] = field(default_factory=list)
     rules: dict[str, dict[str, tuple[object, Origin]]] = field(default_factory=dict)
     files: list[str] = field(default_factory=list)
@@ -529,6 +531,11 @@ class _FileReader:
 
     def list_lines(self, file: str, data: bytes) -> Iterator[tuple[int, str]]:
         """(line number, content) of every non-blank, non-comment line of a list file."""
+        for n, content, _ in self.noted_lines(file, data):
+            yield n, content
+
+    def noted_lines(self, file: str, data: bytes) -> Iterator[tuple[int, str, str]]:
+        """(line number, content, its comment) of every non-blank, non-comment line."""
         try:
             text = data.decode("utf-8")
         except UnicodeDecodeError as e:
@@ -542,7 +549,7 @@ class _FileReader:
         for n, raw in enumerate(text.split("\n"), 1):
             content = strip_comment(raw) if "#" in raw else raw.strip()
             if content:
-                yield n, content
+                yield n, content, raw.strip()[len(content) :] if "#" in raw else ""
 
     def list_file(self, path: Path, key: str) -> Iterator[tuple[int, str]]:
         data = self.read_list(path, key)
@@ -616,7 +623,10 @@ class _FileReader:
     def vocabulary(self, value: object) -> None:
         """``[vocabulary]``: per language, word lists of the team's own documents (what
         `guard harvest --out` writes as vocabulary.txt). Not protected terms: evidence that
-        a word belongs to the domain, read by the frequency rules."""
+        a word belongs to the domain, read by the frequency rules. A line may give the
+        word's count in the documents in its comment, ``word  # count=12``, as the harvest
+        writes it: a word the documents use rarely next to one they use all the time may
+        be their own typo (see real-word)."""
         if not self.want("vocabulary", value, dict, "a table"):
             return
         assert isinstance(value, dict)
@@ -627,14 +637,21 @@ class _FileReader:
                 self.err(key, f"'{tag}' is not a language tag (BCP 47, e.g. en or de-CH)")
                 continue
             files = self.str_list(key, files_value, allow_str=True)
-            words = self.layer.vocabulary.setdefault(lang, set())
+            words = self.layer.vocabulary.setdefault(lang, {})
             for i, rel in enumerate(files or []):
                 item_key = key if isinstance(files_value, str) else f"{key}[{i}]"
                 path = self.contained(item_key, rel)
                 if path is None:
                     continue
-                for _, text in self.list_file(path, item_key):
-                    words.add(normalize_key(collapse_spaces(text), fold=True))
+                data = self.read_list(path, item_key)
+                if data is None:
+                    continue
+                counted: dict[str, int] = {}
+                for _, text, note in self.noted_lines(str(path), data):
+                    word = normalize_key(collapse_spaces(text), fold=True)
+                    got = _COUNT_NOTE.search(note)
+                    merge_counts(counted, {word: int(got.group(1)) if got else 0})
+                merge_counts(words, counted)
 
     # -- patterns
 
@@ -829,6 +846,9 @@ class _FileReader:
 
 
 # ------------------------------------------------------------------ helpers
+
+
+_COUNT_NOTE = re.compile(r"\bcount=(\d+)")  # a vocabulary line's count, as harvest writes it
 
 
 def strip_comment(raw: str) -> str:
@@ -1482,7 +1502,7 @@ def resolve(
     blocked: list[PairEntry] = []
     allowed: list[PairEntry] = []
     critical: list[TermEntry] = []
-    vocabulary: dict[str, set[str]] = {}
+    vocabulary: dict[str, dict[str, int]] = {}
     examples: list[Example] = []
     parent_examples: list[Example] = []
     files: list[str] = []
@@ -1506,8 +1526,8 @@ def resolve(
         blocked.extend(layer.blocked)
         allowed.extend(layer.allowed)
         critical.extend(layer.critical)
-        for lang, words in layer.vocabulary.items():
-            vocabulary.setdefault(lang, set()).update(words)
+        for lang, counted in layer.vocabulary.items():
+            merge_counts(vocabulary.setdefault(lang, {}), counted)
         is_named = any(layer is n for n in named)
         (examples if is_named else parent_examples).extend(layer.examples)
     if overrides:
@@ -1536,7 +1556,7 @@ def resolve(
         blocked=tuple(blocked),
         allowed=tuple(allowed),
         critical=tuple(critical),
-        vocabulary=MappingProxyType({k: frozenset(v) for k, v in vocabulary.items()}),
+        vocabulary=MappingProxyType({k: MappingProxyType(v) for k, v in vocabulary.items()}),
         examples=tuple(examples),
         parent_examples=tuple(parent_examples),
         meta=MappingProxyType(meta),

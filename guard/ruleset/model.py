@@ -26,6 +26,26 @@ class CasePolicy(enum.StrEnum):
     FOLD = "fold"
 
 
+WordCounts = Mapping[str, int]
+"""A domain vocabulary: each folded word of the team's documents -> how often they use it
+(0: its list gave no count, and the word is trusted whole)."""
+
+
+def merge_counts(into: dict[str, int], words: Mapping[str, int]) -> None:
+    """Add ``words`` to ``into``: the counts of two lists add up, and a word one list gives
+    without a count stays uncounted (a hand-kept list vouches for the word whatever a
+    harvest counted).
+
+    >>> v = {"tar": 3, "cwd": 0}
+    >>> merge_counts(v, {"tar": 2, "cwd": 5, "sed": 1})
+    >>> v
+    {'tar': 5, 'cwd': 0, 'sed': 1}
+    """
+    for word, n in words.items():
+        had = into.get(word)
+        into[word] = n if had is None else 0 if had == 0 or n == 0 else had + n
+
+
 @dataclass(frozen=True, slots=True, kw_only=True)
 class TermEntry:
     """One protected term (or critical word) as written in its list, with where it came from."""
@@ -193,7 +213,7 @@ class CompiledRuleset:
         examples: tuple[Example, ...],
         matcher: object,
         lexicons: object,
-        vocabulary: Mapping[str, frozenset[str]] | None = None,
+        vocabulary: Mapping[str, WordCounts] | None = None,
     ) -> None:
         self.name = name
         self.description = description
@@ -209,7 +229,7 @@ class CompiledRuleset:
         self.examples = examples
         self._matcher = matcher
         self._lexicons = lexicons
-        self.vocabulary: Mapping[str, frozenset[str]] = _with_primary_tags(vocabulary or {})
+        self.vocabulary: Mapping[str, WordCounts] = _with_primary_tags(vocabulary or {})
 
     @property
     def default_language(self) -> str:
@@ -228,17 +248,15 @@ class CompiledRuleset:
         return self._lexicons.get(lang)  # type: ignore[attr-defined,no-any-return]
 
 
-def _with_primary_tags(
-    vocabulary: Mapping[str, frozenset[str]],
-) -> Mapping[str, frozenset[str]]:
+def _with_primary_tags(vocabulary: Mapping[str, WordCounts]) -> Mapping[str, WordCounts]:
     """The vocabulary by language tag, each list also under its primary subtag when no
     list has that tag, so that text tagged "en-GB" finds the words listed for "en" and
     text tagged "en" those listed for "en-GB"; lists for the same primary subtag merge."""
     out = dict(vocabulary)
-    merged: dict[str, set[str]] = {}
+    merged: dict[str, dict[str, int]] = {}
     for tag, words in vocabulary.items():
         primary = tag.split("-", 1)[0]
         if primary not in vocabulary:
-            merged.setdefault(primary, set()).update(words)
-    out.update({k: frozenset(v) for k, v in merged.items()})
+            merge_counts(merged.setdefault(primary, {}), words)
+    out.update({k: MappingProxyType(v) for k, v in merged.items()})
     return MappingProxyType(out)

@@ -111,3 +111,72 @@ def test_a_word_that_begins_with_a_vocabulary_word(tmp_path: Path) -> None:
     assert "begins with 'printer'" in report.findings[0].message
     # a typo fixed further on leaves the head whole: nothing for the vocabulary to say
     assert real_word(guard.check("a printerlss setup", "a printerless setup", lang="en")) == set()
+
+
+def with_counted_vocabulary(tmp_path: Path, *lists: dict[str, int | None]) -> Guard:
+    """A ruleset naming one vocabulary file per dict (word -> count, None: no count)."""
+    tmp_path.mkdir(parents=True, exist_ok=True)
+    names = []
+    for i, words in enumerate(lists):
+        name = f"vocabulary{i}.txt"
+        lines = [w if n is None else f"{w}  # count={n}" for w, n in words.items()]
+        (tmp_path / name).write_text("\n".join(lines) + "\n", encoding="utf-8")
+        names.append(f'"{name}"')
+    ruleset = tmp_path / "ruleset.toml"
+    ruleset.write_text(
+        '[ruleset]\nname = "team"\nextends = ["base"]\n\n'
+        f"[vocabulary]\nen = [{', '.join(names)}]\n",
+        encoding="utf-8",
+    )
+    return Guard(load_ruleset(ruleset))
+
+
+BASE_TYPO_GAIN = 2.0  # rulesets/base: real-word.vocabulary-typo-gain, a factor of 10**2 = 100
+
+
+def test_the_base_typo_gain_is_the_one_these_cases_assume() -> None:
+    assert load_ruleset("base").rules["real-word"].options["vocabulary-typo-gain"] == BASE_TYPO_GAIN
+
+
+def test_the_counts_of_a_vocabulary_are_read_and_merged(tmp_path: Path) -> None:
+    guard = with_counted_vocabulary(
+        tmp_path, {"awk": 3, "ask": 40, "sed": None}, {"awk": 2, "sed": 7, "grep": 1}
+    )
+    # two lists add up; a word one list gives without a count stays uncounted (0)
+    assert dict(guard.ruleset.vocabulary["en"]) == {"awk": 5, "ask": 40, "sed": 0, "grep": 1}
+
+
+def test_a_rare_neighbour_of_a_word_the_documents_use_all_the_time(tmp_path: Path) -> None:
+    # awk -> ask is one edit (jellyfish, above) and the documents write "ask" 500 times,
+    # "awk" once: 500 >= 1 * 10**2.0, so "awk" reads as their own typo and the
+    # frequent-misspelling exemption of the base ruleset decides (it lets the fix pass:
+    # "awk" is below the floor, "ask" 2.5 Zipf more common, see the first test).
+    assert 1 * 10**BASE_TYPO_GAIN <= 500
+    guard = with_counted_vocabulary(tmp_path, {"awk": 1, "ask": 500, "run": 800})
+    assert real_word(guard.check("run awk on it", "run ask on it", lang="en")) == set()
+
+
+def test_a_domain_word_the_documents_use_often_enough_stays_real(tmp_path: Path) -> None:
+    # 50 < 1 * 10**2.0: not rare enough beside "ask" to be read as a typo
+    guard = with_counted_vocabulary(tmp_path, {"awk": 1, "ask": 50})
+    assert real_word(guard.check("run awk on it", "run ask on it", lang="en")) == {Action.VETO}
+
+
+def test_an_uncounted_word_is_trusted_whole(tmp_path: Path) -> None:
+    guard = with_counted_vocabulary(tmp_path, {"awk": None, "ask": 500})
+    assert real_word(guard.check("run awk on it", "run ask on it", lang="en")) == {Action.VETO}
+    guard = with_counted_vocabulary(tmp_path / "two", {"awk": 1, "ask": 500}, {"awk": None})
+    assert real_word(guard.check("run awk on it", "run ask on it", lang="en")) == {Action.VETO}
+
+
+def test_a_rare_word_two_edits_from_a_common_one_is_no_typo_of_it(tmp_path: Path) -> None:
+    # grep -> group: two edits (jellyfish), beyond the base gain-max-distance of 1
+    assert jellyfish.damerau_levenshtein_distance("grep", "group") == 2
+    guard = with_counted_vocabulary(tmp_path, {"grep": 1, "group": 5000})
+    report = guard.check("use grep here", "use group here", lang="en")
+    assert real_word(report) == {Action.VETO}
+    said = [f.message for f in report.findings if f.rule == "real-word"]
+    assert said == [
+        "'grep' is a word of the domain's own documents (en vocabulary); "
+        "a speller that changes it does not know it"
+    ]
