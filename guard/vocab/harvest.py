@@ -601,8 +601,9 @@ def write_vocabulary(
     path.parent.mkdir(parents=True, exist_ok=True)
     lines = [
         "# Domain vocabulary written by `guard harvest`: every word of the corpus, most\n"
-        "# frequent first, with its count. Name it under [vocabulary] in a ruleset; it\n"
-        "# holds whatever typos the corpus holds, so review the rare end.\n"
+        "# frequent first, with its count. Name it under [vocabulary] in a ruleset. It\n"
+        "# holds whatever typos the corpus holds: keep the counts, by which real-word\n"
+        "# reads a rare word one slip from a far commoner one as such a typo.\n"
     ]
     lines += [f"{w}  # count={n}\n" for w, n in words]
     path.write_text("".join(lines), encoding="utf-8")
