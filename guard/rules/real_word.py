@@ -290,7 +290,7 @@ RULE = Rule(
             per_lang=True,
         ),
         "vocabulary-typo-gain": OptionSpec(
-            default=2.5,
+            default=1.75,
             type=float,
             doc="with a counted domain vocabulary, a vocabulary word that the documents use "
             "this many powers of ten less often than the word a fix within gain-max-distance "

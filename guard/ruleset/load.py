@@ -54,6 +54,7 @@ from guard.ruleset.model import (
     Settings,
     TermEntry,
     WordCounts,
+    add_count,
     merge_counts,
 )
 from guard.ruleset.terms import TermTable, collapse_spaces, first_pieces
@@ -646,12 +647,10 @@ class _FileReader:
                 data = self.read_list(path, item_key)
                 if data is None:
                     continue
-                counted: dict[str, int] = {}
                 for _, text, note in self.noted_lines(str(path), data):
-                    word = normalize_key(collapse_spaces(text), fold=True)
                     got = _COUNT_NOTE.search(note)
-                    merge_counts(counted, {word: int(got.group(1)) if got else 0})
-                merge_counts(words, counted)
+                    word = normalize_key(collapse_spaces(text), fold=True)
+                    add_count(words, word, int(got.group(1)) if got else 0)
 
     # -- patterns
 

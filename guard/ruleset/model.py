@@ -42,8 +42,13 @@ def merge_counts(into: dict[str, int], words: Mapping[str, int]) -> None:
     {'tar': 5, 'cwd': 0, 'sed': 1}
     """
     for word, n in words.items():
-        had = into.get(word)
-        into[word] = n if had is None else 0 if had == 0 or n == 0 else had + n
+        add_count(into, word, n)
+
+
+def add_count(into: dict[str, int], word: str, n: int) -> None:
+    """Add one word's count to ``into`` as :func:`merge_counts` does."""
+    had = into.get(word)
+    into[word] = n if had is None else 0 if had == 0 or n == 0 else had + n
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
