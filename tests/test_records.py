@@ -46,7 +46,8 @@ def test_records_stay_frozen_and_keep_defaults() -> None:
 
 
 def test_the_unchanged_report_is_the_one_the_keyword_constructor_makes() -> None:
-    # the positional maker must set every field, each to what the dataclass would hold
+    # the maker (a mutable twin given the class) must set every field, each to what the
+    # dataclass would hold, and hand back an ordinary Report
     made = unchanged_report("same text", "de", "base")
     expected = Report(
         source="same text",
@@ -65,3 +66,5 @@ def test_the_unchanged_report_is_the_one_the_keyword_constructor_makes() -> None
     )
     with pytest.raises(dataclasses.FrozenInstanceError):
         made.source = "other"  # type: ignore[misc]
+    assert not hasattr(made, "__dict__")
+    assert pickle.loads(pickle.dumps(made)) == made and hash(made) == hash(expected)
