@@ -36,8 +36,16 @@ def quick_init(cls: _C) -> _C:
     Frozenness, equality, hashing and repr stay as ``dataclass`` made them.
     """
     params: list[str] = []
-    body: list[str] = []
-    scope: dict[str, object] = {}
+    stores: list[str] = []
+    sets: list[str] = []
+    # A plain class with the record's slots in the same order has its memory layout, so
+    # an instance may change between the two (CPython allows __class__ assignment between
+    # such layouts): plain attribute stores on the twin, then back to the record.
+    scope: dict[str, object] = {
+        "cls": cls,
+        "twin": type(f"_{cls.__name__}Draft", (), {"__slots__": cls.__slots__}),
+        "become": object.__setattr__,
+    }
     for i, f in enumerate(dataclasses.fields(cls)):
         if not f.init or f.default_factory is not dataclasses.MISSING:
             raise TypeError(f"{cls.__name__}.{f.name}: quick_init takes plain fields only")
@@ -47,8 +55,16 @@ def quick_init(cls: _C) -> _C:
         else:
             scope[f"default{i}"] = f.default
             params.append(f"{f.name}=default{i}")
-        body.append(f"    set{i}(self, {f.name})")
-    source = f"def __init__(self, *, {', '.join(params)}):\n" + "\n".join(body) + "\n"
+        stores.append(f"        self.{f.name} = {f.name}")
+        sets.append(f"        set{i}(self, {f.name})")
+    source = (
+        f"def __init__(self, *, {', '.join(params)}):\n"
+        "    if type(self) is cls:\n"
+        "        become(self, '__class__', twin)\n"
+        + "\n".join(stores)
+        + "\n        self.__class__ = cls\n"
+        "    else:  # a subclass: its own layout\n" + "\n".join(sets) + "\n"
+    )
     exec(source, scope)  # built from the field names of a dataclass, nothing else
     init: Callable[..., None] = scope["__init__"]  # type: ignore[assignment]
     init.__qualname__ = f"{cls.__qualname__}.__init__"
