@@ -68,3 +68,14 @@ def test_the_unchanged_report_is_the_one_the_keyword_constructor_makes() -> None
         made.source = "other"  # type: ignore[misc]
     assert not hasattr(made, "__dict__")
     assert pickle.loads(pickle.dumps(made)) == made and hash(made) == hash(expected)
+
+
+def test_a_subclass_of_a_record_keeps_its_class() -> None:
+    # quick_init's twin has the record's own layout only; a subclass is set field by field
+    class Marked(Token):
+        pass
+
+    tok = Marked(text="pump", start=0, end=4, kind=TokenKind.WORD)
+    assert type(tok) is Marked and (tok.text, tok.start, tok.end) == ("pump", 0, 4)
+    plain = Token(text="pump", start=0, end=4, kind=TokenKind.WORD)
+    assert type(plain) is Token and not hasattr(plain, "__dict__")
