@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import unicodedata
 from collections.abc import Iterable, Sequence
+from typing import cast
 
 import regex
 from rapidfuzz.distance import OSA, Levenshtein, Postfix, Prefix
@@ -112,20 +113,15 @@ def _cut_after(text: str, pos: int) -> int | None:
     return forward.start() if forward is not None else None
 
 
-def _classify(
-    old: str, new: str, old_spans: Sequence[_Span], new_spans: Sequence[_Span]
-) -> tuple[RewriteKind, Refinement | None]:
+def _classify(old: str, new: str, n_old: int, n_new: int) -> RewriteKind:
+    """The kind of a rewrite of ``n_old`` tokens other than whitespace into ``n_new``."""
     if not old:
-        kind = RewriteKind.INSERT
-    elif not new:
-        kind = RewriteKind.DELETE
-    else:
-        kind = RewriteKind.REPLACE
-        n_old = sum(1 for s in old_spans if s[2] is not TokenKind.SPACE)
-        n_new = sum(1 for s in new_spans if s[2] is not TokenKind.SPACE)
-        if 1 in (n_old, n_new) and max(n_old, n_new) > 1 and _squash(old) == _squash(new):
-            kind = RewriteKind.SPLIT if n_old == 1 else RewriteKind.JOIN
-    return kind, _refinement(old, new)
+        return RewriteKind.INSERT
+    if not new:
+        return RewriteKind.DELETE
+    if 1 in (n_old, n_new) and max(n_old, n_new) > 1 and _squash(old) == _squash(new):
+        return RewriteKind.SPLIT if n_old == 1 else RewriteKind.JOIN
+    return RewriteKind.REPLACE
 
 
 def _refinement(old: str, new: str) -> Refinement | None:
@@ -135,6 +131,9 @@ def _refinement(old: str, new: str) -> Refinement | None:
     if old.isascii() and new.isascii():
         if old.isalnum() and new.isalnum():
             return None  # letters and digits only: no accent, space or punctuation to differ
+        bare_old, bare_new = old.replace(" ", ""), new.replace(" ", "")
+        if bare_old.isalnum() and bare_new.isalnum():  # and plain spaces: a join or split
+            return Refinement.SPACING if bare_old == bare_new else None
     elif strip_accents(old) == strip_accents(new) and _diacritics_only(old, new):
         return Refinement.ACCENTS
     if _SPACE.sub("", old) == _SPACE.sub("", new):
@@ -157,6 +156,10 @@ def _diacritics_only(old: str, new: str) -> bool:
 
 def _squash(text: str) -> str:
     """The letters a split or join must keep: no spaces, no hyphens, any case."""
+    if text.isascii():
+        bare = text.replace(" ", "")
+        if bare.isalnum():  # letters, digits and plain spaces: what most joins are
+            return bare.lower()
     return _SPACE_OR_HYPHEN.sub("", text).casefold()
 
 
@@ -171,9 +174,11 @@ def _regions(
     """
     groups: list[list[list[int]]] = []  # each group: its changed blocks [i1, i2, j1, j2]
     gap_is_space = False  # the unchanged run since the last change is only whitespace
-    for op in Levenshtein.opcodes(a, b):
-        i1, i2, j1, j2 = op.src_start, op.src_end, op.dest_start, op.dest_end
-        if op.tag == "equal":
+    # Plain tuples, cheaper to read than the Opcode records (the stub says Opcode, whose
+    # fields unpack in the same order).
+    ops = cast(list[tuple[str, int, int, int, int]], Levenshtein.opcodes(a, b).as_list())
+    for tag, i1, i2, j1, j2 in ops:
+        if tag == "equal":
             gap_is_space = all(a_space[i1:i2])
             continue
         if groups and groups[-1][-1][1] == i1 and groups[-1][-1][3] == j1:
@@ -255,112 +260,159 @@ def _realign(
     deleting a word 1, whitespace 0.3; a join of two or three words (with the whitespace
     between) into one, or a split, 0.5 a joined word boundary plus twice the distance of
     the joined letters. The path's consecutive changes make one region each.
+
+    Ties go to the move tried first: cells in row order, and from each cell the diagonal,
+    a deletion, an insertion, the joins, then the splits (each the shorter first); a move
+    replaces a cell's best only when strictly cheaper. The tables are flat lists indexed
+    ``i * (m + 1) + j``, and a back pointer is the previous cell's index times two, plus
+    one when the step changed something: this runs on the slowest pairs a speller gives
+    (joins next to other fixes), so it makes no object per cell.
     """
     n, m = i2 - i1, j2 - j1
-    inf = float("inf")
-    cost = [[inf] * (m + 1) for _ in range(n + 1)]
-    back: list[list[tuple[int, int, bool] | None]] = [[None] * (m + 1) for _ in range(n + 1)]
-    cost[0][0] = 0.0
+    xs, ys = a[i1:i2], b[j1:j2]
+    y_space = b_space[j1:j2]
+    y_gap = [0.3 if sp else 1.0 for sp in y_space]  # inserting each token of b
+    a3, a5 = _joined(xs, a_space[i1:i2])
+    b3, b5 = _joined(ys, y_space)
+    width = m + 1
+    # Every cell is reached (by deletions, then insertions) before its row is processed,
+    # so no cell is skipped as unreached.
+    cost = [float("inf")] * ((n + 1) * width)
+    back = [0] * ((n + 1) * width)
+    cost[0] = 0.0
+    dist = OSA.normalized_distance
+    for i in range(n):
+        x = xs[i]
+        row = i * width
+        x_space = a_space[i1 + i]
+        x_gap = 0.3 if x_space else 1.0
+        x3, x5 = a3[i], a5[i]  # None unless x is a word
+        for here in range(row, row + m):
+            c = cost[here]
+            code = 2 * here + 1  # back pointer of a changing step from here
+            j = here - row
+            y = ys[j]
+            y_sp = y_space[j]
+            to = here + width + 1
+            if x == y:
+                if c < cost[to]:
+                    cost[to] = c
+                    back[to] = code - 1
+            elif y_sp:
+                if x_space:
+                    v = c + 0.2
+                    if v < cost[to]:
+                        cost[to] = v
+                        back[to] = code
+            elif not x_space:
+                v = c + dist(x, y)
+                if v < cost[to]:
+                    cost[to] = v
+                    back[to] = code
+            v = c + x_gap
+            if v < cost[here + width]:
+                cost[here + width] = v
+                back[here + width] = code
+            v = c + y_gap[j]
+            if v < cost[here + 1]:
+                cost[here + 1] = v
+                back[here + 1] = code
+            if y_sp or x_space:
+                continue  # a join or a split takes words on both sides
+            if x3 is not None:  # x and the next word joined into y
+                v = c + 0.5 + 2 * dist(x3, y, score_cutoff=_JOIN_CUTOFF)
+                to = here + 3 * width + 1
+                if v < cost[to]:
+                    cost[to] = v
+                    back[to] = code
+                if x5 is not None:
+                    v = c + 1.0 + 2 * dist(x5, y, score_cutoff=_JOIN_CUTOFF)
+                    to = here + 5 * width + 1
+                    if v < cost[to]:
+                        cost[to] = v
+                        back[to] = code
+            y3 = b3[j]
+            if y3 is not None:  # x split into y and the next word
+                v = c + 0.5 + 2 * dist(x, y3, score_cutoff=_JOIN_CUTOFF)
+                to = here + width + 3
+                if v < cost[to]:
+                    cost[to] = v
+                    back[to] = code
+                y5 = b5[j]
+                if y5 is not None:
+                    v = c + 1.0 + 2 * dist(x, y5, score_cutoff=_JOIN_CUTOFF)
+                    to = here + width + 5
+                    if v < cost[to]:
+                        cost[to] = v
+                        back[to] = code
+        here = row + m  # the end of b: only a deletion
+        v = cost[here] + x_gap
+        if v < cost[here + width]:
+            cost[here + width] = v
+            back[here + width] = 2 * here + 1
+    row = n * width  # the end of a: only insertions
+    for here in range(row, row + m):
+        v = cost[here] + y_gap[here - row]
+        if v < cost[here + 1]:
+            cost[here + 1] = v
+            back[here + 1] = 2 * here + 1
+    return _path(back, width, a_space, b_space, i1, j1)
 
-    def relax(i: int, j: int, pi: int, pj: int, c: float, changed: bool) -> None:
-        if c < cost[i][j]:
-            cost[i][j] = c
-            back[i][j] = (pi, pj, changed)
 
-    # The joined letters of 2 and 3 words starting at each position (None where the
-    # tokens there are not word, space, word...), computed once per side.
-    a_joins = [
-        (k, _words(a, a_space, i1 + i, i1 + min(i + k, n), k)) for i in range(n) for k in (3, 5)
-    ]
-    b_joins = [
-        (k, _words(b, b_space, j1 + j, j1 + min(j + k, m), k)) for j in range(m) for k in (3, 5)
-    ]
-    for i in range(n + 1):
-        x = a[i1 + i] if i < n else None
-        x_space = i < n and a_space[i1 + i]
-        for j in range(m + 1):
-            c = cost[i][j]
-            if c == inf:
-                continue
-            y = b[j1 + j] if j < m else None
-            y_space = j < m and b_space[j1 + j]
-            if x is not None and y is not None:
-                if x == y:
-                    relax(i + 1, j + 1, i, j, c, False)
-                elif x_space and y_space:
-                    relax(i + 1, j + 1, i, j, c + 0.2, True)
-                elif not x_space and not y_space:
-                    relax(i + 1, j + 1, i, j, c + OSA.normalized_distance(x, y), True)
-            if x is not None:
-                relax(i + 1, j, i, j, c + (0.3 if x_space else 1.0), True)
-            if y is not None:
-                relax(i, j + 1, i, j, c + (0.3 if y_space else 1.0), True)
-            if y is not None and not y_space and i < n:
-                for k, words in a_joins[2 * i : 2 * i + 2]:
-                    if words is not None:
-                        d = OSA.normalized_distance(words, y, score_cutoff=_JOIN_CUTOFF)
-                        relax(i + k, j + 1, i, j, c + k // 2 * 0.5 + 2 * d, True)
-            if x is not None and not x_space and j < m:
-                for k, words in b_joins[2 * j : 2 * j + 2]:
-                    if words is not None:
-                        d = OSA.normalized_distance(x, words, score_cutoff=_JOIN_CUTOFF)
-                        relax(i + 1, j + k, i, j, c + k // 2 * 0.5 + 2 * d, True)
+def _joined(
+    tokens: Sequence[str], space: Sequence[bool]
+) -> tuple[list[str | None], list[str | None]]:
+    """The letters of 2 and of 3 words starting at each token (None where the tokens
+    there are not word, space, word (, space, word))."""
+    n = len(tokens)
+    two: list[str | None] = [None] * n
+    three: list[str | None] = [None] * n
+    for i in range(n - 2):
+        if not space[i] and space[i + 1] and not space[i + 2]:
+            two[i] = joined = tokens[i] + tokens[i + 2]
+            if i + 4 < n and space[i + 3] and not space[i + 4]:
+                three[i] = joined + tokens[i + 4]
+    return two, three
+
+
+def _path(
+    back: Sequence[int],
+    width: int,
+    a_space: Sequence[bool],
+    b_space: Sequence[bool],
+    i1: int,
+    j1: int,
+) -> list[tuple[int, int, int, int]]:
+    """The regions of the least-cost path that ends in the last cell of ``back``."""
     steps: list[tuple[int, int, int, int] | None] = []  # in text order; None: unchanged
-    i, j = n, m
-    while i or j:
-        step = back[i][j]
-        assert step is not None  # every cell on the path was reached
-        pi, pj, changed = step
-        steps.append((pi, i, pj, j) if changed else None)
-        i, j = pi, pj
+    to = len(back) - 1
+    while to:
+        code = back[to]
+        at = code >> 1
+        pi, pj = divmod(at, width)
+        i, j = divmod(to, width)
+        steps.append((i1 + pi, i1 + i, j1 + pj, j1 + j) if code & 1 else None)
+        to = at
     steps.reverse()
-
-    def word_fix(s: tuple[int, int, int, int] | None) -> bool:
-        return (
-            s is not None
-            and s[1] - s[0] == 1
-            and s[3] - s[2] == 1
-            and not a_space[i1 + s[0]]
-            and not b_space[j1 + s[2]]
-        )
-
-    def spacing(s: tuple[int, int, int, int] | None) -> bool:
-        return (
-            s is not None
-            and all(a_space[i1 + s[0] : i1 + s[1]])
-            and all(b_space[j1 + s[2] : j1 + s[3]])
-        )
-
     path: list[tuple[int, int, int, int]] = []
-    for k, s in enumerate(steps):
+    # A word fixed, the spacing after it changed, then the next word fixed on its own
+    # ("l'alimengation" -> "l alimentation": the elision broken, a typo fixed) makes
+    # two rewrites, so that the verdict on one does not take the other with it.
+    fixed = spaced = False  # the step before is a word fix / the one before that is
+    for s in steps:
         if s is None:
+            fixed = spaced = False
             continue
         p, q, r, t = s
-        # A word fixed, the spacing after it changed, then the next word fixed on its own
-        # ("l'alimengation" -> "l alimentation": the elision broken, a typo fixed) makes
-        # two rewrites, so that the verdict on one does not take the other with it.
-        apart = k >= 2 and word_fix(s) and spacing(steps[k - 1]) and word_fix(steps[k - 2])
+        word_fix = q - p == 1 and t - r == 1 and not a_space[p] and not b_space[r]
+        apart = word_fix and spaced
         if path and path[-1][1] == p and path[-1][3] == r and not apart:
             path[-1] = (path[-1][0], q, path[-1][2], t)  # adjacent change: extend
         else:
-            path.append((p, q, r, t))
-    return [(i1 + p, i1 + q, j1 + r, j1 + s) for p, q, r, s in path]
-
-
-def _words(tokens: Sequence[str], space: Sequence[bool], i: int, end: int, k: int) -> str | None:
-    """The letters of ``k`` tokens from ``i`` if they are word, space, word (, space, word)."""
-    if end - i != k:
-        return None
-    for t in range(i, end):
-        if space[t] != ((t - i) % 2 == 1):
-            return None
-    return "".join(tokens[t] for t in range(i, end, 2))
-
-
-def _tokens(text: str, span_list: Sequence[_Span], offset: int) -> tuple[Token, ...]:
-    return tuple(
-        Token(text=text[s - offset : e - offset], start=s, end=e, kind=k) for s, e, k in span_list
-    )
+            path.append(s)
+        spaced = fixed and all(a_space[p:q]) and all(b_space[r:t])
+        fixed = word_fix
+    return path
 
 
 def align(source: str, proposal: str) -> tuple[Rewrite, ...]:
@@ -407,23 +459,21 @@ def _by_opcodes(
     """The general path: rapidfuzz's opcodes over the window's tokens (``one_a``,
     ``one_b``: its spans, relative to ``start``), realigned where words were split or
     joined."""
-    a_spans = [(s + start, e + start, k) for s, e, k in one_a]
-    b_spans = [(s + start, e + start, k) for s, e, k in one_b]
-    a = [source[s:e] for s, e, _ in a_spans]
-    b = [proposal[s:e] for s, e, _ in b_spans]
+    a = [source[s + start : e + start] for s, e, _ in one_a]
+    b = [proposal[s + start : e + start] for s, e, _ in one_b]
+    a_space = [k is _SPACE_KIND for _, _, k in one_a]
+    b_space = [k is _SPACE_KIND for _, _, k in one_b]
     rewrites: list[Rewrite] = []
-    a_space = [k is TokenKind.SPACE for _, _, k in a_spans]
-    b_space = [k is TokenKind.SPACE for _, _, k in b_spans]
     for i1, i2, j1, j2 in _regions(a, b, a_space, b_space):
-        old_spans, new_spans = a_spans[i1:i2], b_spans[j1:j2]
-        old_start = a_spans[i1][0] if i1 < i2 else _position(a_spans, i1, start)
-        old_end = a_spans[i2 - 1][1] if i1 < i2 else old_start
-        new_start = b_spans[j1][0] if j1 < j2 else _position(b_spans, j1, start)
-        new_end = b_spans[j2 - 1][1] if j1 < j2 else new_start
+        old_start = (one_a[i1][0] if i1 < i2 else _position(one_a, i1)) + start
+        old_end = one_a[i2 - 1][1] + start if i1 < i2 else old_start
+        new_start = (one_b[j1][0] if j1 < j2 else _position(one_b, j1)) + start
+        new_end = one_b[j2 - 1][1] + start if j1 < j2 else new_start
         old, new = source[old_start:old_end], proposal[new_start:new_end]
         if old == new:
             continue  # the same text cut into other tokens by what precedes it: no change
-        kind, refinement = _classify(old, new, old_spans, new_spans)
+        n_old = i2 - i1 - sum(a_space[i1:i2])
+        n_new = j2 - j1 - sum(b_space[j1:j2])
         rewrites.append(
             Rewrite(
                 index=len(rewrites),
@@ -433,13 +483,31 @@ def _by_opcodes(
                 new=new,
                 new_start=new_start,
                 new_end=new_end,
-                kind=kind,
-                refinement=refinement,
-                old_tokens=_tokens(source, old_spans, 0),
-                new_tokens=_tokens(proposal, new_spans, 0),
+                kind=_classify(old, new, n_old, n_new),
+                refinement=_refinement(old, new),
+                old_tokens=_tokens(a, one_a, i1, i2, start),
+                new_tokens=_tokens(b, one_b, j1, j2, start),
             )
         )
     return tuple(rewrites)
+
+
+def _tokens(
+    texts: Sequence[str], span_list: Sequence[_Span], i1: int, i2: int, offset: int
+) -> tuple[Token, ...]:
+    """The records of tokens ``i1`` to ``i2`` (``texts``: their texts; ``span_list``: their
+    spans, relative to ``offset``)."""
+    return tuple(
+        [
+            Token(
+                text=texts[i],
+                start=span_list[i][0] + offset,
+                end=span_list[i][1] + offset,
+                kind=span_list[i][2],
+            )
+            for i in range(i1, i2)
+        ]
+    )
 
 
 # More changed words than this may have another alignment as cheap as the word-for-word
@@ -501,11 +569,11 @@ def _word_for_word(
 _SPACE_KIND = TokenKind.SPACE
 
 
-def _position(span_list: Sequence[_Span], i: int, window_start: int) -> int:
-    """The text offset where token ``i`` of a window starts (its end, past the last)."""
+def _position(span_list: Sequence[_Span], i: int) -> int:
+    """Where token ``i`` of a window starts (its end, past the last), relative to it."""
     if i < len(span_list):
         return span_list[i][0]
-    return span_list[-1][1] if span_list else window_start
+    return span_list[-1][1] if span_list else 0
 
 
 def apply(source: str, rewrites: Iterable[Rewrite]) -> str:
