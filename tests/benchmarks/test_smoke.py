@@ -140,3 +140,23 @@ def test_the_instruction_count_child_checks_the_pairs_it_is_given(tmp_path: Path
             capture_output=True, text=True, timeout=300, check=False,
         )  # fmt: skip
         assert run.returncode == 0, run.stderr
+
+
+def test_the_tail_script_keeps_the_slowest_pairs_and_times_them_again(tmp_path: Path) -> None:
+    # tail.py times the slowest 1% of changed pairs; what is checked is that it runs, keeps
+    # that 1% (of 300 pairs: 3) and times exactly those again, never how fast they were
+    kept = tmp_path / "tail.json"
+    cmd = [sys.executable, str(BENCH / "tail.py"), "--pairs", "300", "--terms", "300",
+           "--rounds", "1"]  # fmt: skip
+    first = subprocess.run(
+        [*cmd, "--save-tail", str(kept)], capture_output=True, text=True, timeout=300, check=False
+    )
+    assert first.returncode == 0, first.stderr[-2000:]
+    slow = json.loads(kept.read_text(encoding="utf-8"))
+    assert len(slow) == 3 and all(source != proposal for source, proposal in slow)
+    again = subprocess.run(
+        [*cmd, "--tail", str(kept)], capture_output=True, text=True, timeout=300, check=False
+    )
+    assert again.returncode == 0, again.stderr[-2000:]
+    assert "the 3 pairs of tail.json:" in again.stdout
+    assert "check: mean" in again.stdout and "align: mean" in again.stdout
