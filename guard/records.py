@@ -28,24 +28,21 @@ def quick_init(cls: _C) -> _C:
     signature.
 
     The ``__init__`` that ``dataclass(frozen=True)`` writes calls ``object.__setattr__``
-    through a global name once per field; setting each slot through its descriptor does
-    the same in about a third of the time. A check builds a dozen records, and building
-    them was a tenth of its cost. Pickling goes the same way (field values in order, set
-    back through the descriptors): batch workers send every report to the main process,
-    and the default protocol for slotted frozen records cost more than the check itself.
-    Frozenness, equality, hashing and repr stay as ``dataclass`` made them.
+    through a global name once per field. This one turns the new instance into a
+    *twin*, a plain class with the record's slots in the same order (so the same memory
+    layout, between which CPython allows ``__class__`` assignment), stores the fields as
+    plain attributes and turns it back: one call instead of one per field. A check builds
+    a dozen records, and building them was a tenth of its cost. Pickling goes field by
+    field through the slot descriptors (field values in order): batch workers send
+    reports to the main process, and the default protocol for slotted frozen records
+    cost more than the check itself. Frozenness, equality, hashing and repr stay as
+    ``dataclass`` made them.
     """
     params: list[str] = []
     stores: list[str] = []
     sets: list[str] = []
-    # A plain class with the record's slots in the same order has its memory layout, so
-    # an instance may change between the two (CPython allows __class__ assignment between
-    # such layouts): plain attribute stores on the twin, then back to the record.
-    scope: dict[str, object] = {
-        "cls": cls,
-        "twin": type(f"_{cls.__name__}Draft", (), {"__slots__": cls.__slots__}),
-        "become": object.__setattr__,
-    }
+    twin = _TWINS[cls] = type(f"_{cls.__name__}Draft", (), {"__slots__": cls.__slots__})
+    scope: dict[str, object] = {"cls": cls, "twin": twin, "become": object.__setattr__}
     for i, f in enumerate(dataclasses.fields(cls)):
         if not f.init or f.default_factory is not dataclasses.MISSING:
             raise TypeError(f"{cls.__name__}.{f.name}: quick_init takes plain fields only")
@@ -82,6 +79,7 @@ def quick_init(cls: _C) -> _C:
 
 
 _SETTERS: dict[type, tuple[Callable[[object, object], None], ...]] = {}
+_TWINS: dict[type, Any] = {}  # each quick_init record's plain class of the same layout
 
 
 def _restore(cls: type[_T], values: tuple[object, ...]) -> _T:
@@ -324,17 +322,14 @@ class Report:
 
 
 def _unchanged_maker() -> Callable[[str, str, str], Report]:
-    # A plain class with Report's slots in the same order has the same memory layout, so
-    # an instance of it may be given Report's class once its fields are set.
-    draft: Any = type("_ReportDraft", (), {"__slots__": Report.__slots__})
-    accept = Verdict.ACCEPT
+    draft, accept = _TWINS[Report], Verdict.ACCEPT
 
     def unchanged_report(source: str, lang: str, ruleset: str) -> Report:
         """The report on a pair whose proposal is its source: most of a speller's traffic.
-        Its fields are set on a mutable twin of Report (plain attribute stores) that then
-        becomes a Report: a quarter of the cost of the keyword ``__init__`` or of the
-        slot descriptors' setters, which took most of this path's time. What comes out
-        is an ordinary frozen Report."""
+        Its fields are set on Report's twin (see :func:`quick_init`), which then becomes
+        a Report, without the keyword call: a quarter of the cost of the slot
+        descriptors' setters, which took most of this path's time. What comes out is an
+        ordinary frozen Report."""
         report = draft()
         report.source = report.proposal = report.guarded = report.guarded_strict = source
         report.lang = lang
