@@ -168,8 +168,10 @@ class TermTable(Sequence[TermEntry]):
             raise ValueError("term columns differ in length")
         if heads is not None and len(heads) != len(runs):
             raise ValueError("one first-piece table per run, or none")
-        self._terms = terms
-        self._keys = keys
+        # tuples of strings: the garbage collector stops tracking them, so that its full
+        # collections do not walk a million terms each time (a list it walks every time)
+        self._terms = tuple(terms)
+        self._keys = tuple(keys)
         self._lines = lines  # 0: no line
         self._runs = runs  # (first row, list file, kind, case), by first row
         self._starts = [r[0] for r in runs]
@@ -253,7 +255,7 @@ class TermTable(Sequence[TermEntry]):
             if end > start:
                 yield start, end, case, heads
 
-    def keys_of(self, start: int, end: int) -> list[NormalizedText]:
+    def keys_of(self, start: int, end: int) -> Sequence[NormalizedText]:
         if start == 0 and end == len(self._keys):
             return self._keys
         return self._keys[start:end]
